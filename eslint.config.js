@@ -1,0 +1,42 @@
+import js from '@eslint/js';
+import pluginQuery from '@tanstack/eslint-plugin-query';
+import { importX } from 'eslint-plugin-import-x';
+import reactHooks from 'eslint-plugin-react-hooks';
+import globals from 'globals';
+import tseslint from 'typescript-eslint';
+
+export default tseslint.config(
+  { ignores: ['dist', 'node_modules', '.data', 'test-results'] },
+  js.configs.recommended,
+  ...tseslint.configs.recommended,
+  ...pluginQuery.configs['flat/recommended'],
+  {
+    files: ['**/*.{ts,tsx}'],
+    plugins: { 'import-x': importX, 'react-hooks': reactHooks },
+    languageOptions: { globals: { ...globals.browser, ...globals.node } },
+    settings: { 'import-x/resolver': { node: { extensions: ['.ts', '.tsx', '.js'] } } },
+    rules: {
+      ...reactHooks.configs.recommended.rules,
+      'import-x/order': [
+        'warn',
+        { groups: ['builtin', 'external', 'internal', 'parent', 'sibling'], 'newlines-between': 'never' },
+      ],
+      'import-x/no-cycle': 'error',
+      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
+      '@typescript-eslint/consistent-type-imports': 'error',
+    },
+  },
+  {
+    files: ['shared/**/*.ts'],
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        { patterns: ['**/server/**', '**/src/**', 'sequelize', 'express', 'node:*'] },
+      ],
+    },
+  },
+  {
+    files: ['src/**/*.{ts,tsx}'],
+    rules: { 'no-restricted-imports': ['error', { patterns: ['**/server/**', 'node:*'] }] },
+  },
+);

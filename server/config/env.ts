@@ -1,0 +1,72 @@
+import path from 'node:path';
+import { z } from 'zod';
+
+const bool = z
+  .enum(['true', 'false', '1', '0', 'yes', 'no'])
+  .transform((v) => v === 'true' || v === '1' || v === 'yes');
+
+const envSchema = z.object({
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
+  HOST: z.string().default('127.0.0.1'),
+  PORT: z.coerce.number().int().min(1).max(65535).default(4600),
+  PUBLIC_URL: z.string().url().optional(),
+  DATABASE_URL: z.string().url().optional(),
+  BALLAST_DATA_DIR: z.string().default('.data'),
+  BALLAST_DB_PORT: z.coerce.number().int().min(1).max(65535).default(3407),
+  SESSION_SECRET: z.string().min(16).optional(),
+  TRUST_PROXY: bool.default(false),
+  COOKIE_SECURE: z.enum(['auto', 'true', 'false']).default('auto'),
+  LOGIN_MAX_ATTEMPTS: z.coerce.number().int().min(1).default(10),
+  LOGIN_WINDOW_MINUTES: z.coerce.number().int().min(1).default(15),
+  BALLAST_DEMO: bool.optional(),
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+});
+
+export type Env = z.infer<typeof envSchema>;
+
+export type Config = {
+  env: Env['NODE_ENV'];
+  host: string;
+  port: number;
+  publicUrl: string;
+  /** Set when Ballast uses a MariaDB server it did not start itself. */
+  databaseUrl: string | undefined;
+  dataDir: string;
+  embeddedDbPort: number;
+  sessionSecret: string | undefined;
+  trustProxy: boolean;
+  cookieSecure: 'auto' | boolean;
+  login: { maxAttempts: number; windowMinutes: number };
+  logLevel: Env['LOG_LEVEL'];
+  /** Load the invented demo scenario; on by default only with the embedded database. */
+  demo: boolean;
+  rootDir: string;
+};
+
+export const rootDir = path.resolve(import.meta.dirname, '..', '..');
+
+/** Parses the environment once; the only place in Ballast that reads process.env. */
+export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = envSchema.safeParse(source);
+  if (!parsed.success) {
+    const names = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');
+    throw new Error(`Ballast cannot start, the environment is not valid: ${names}`);
+  }
+  const e = parsed.data;
+  return {
+    env: e.NODE_ENV,
+    host: e.HOST,
+    port: e.PORT,
+    publicUrl: e.PUBLIC_URL ?? `http://${e.HOST === '0.0.0.0' ? '127.0.0.1' : e.HOST}:${e.PORT}`,
+    databaseUrl: e.DATABASE_URL,
+    dataDir: path.resolve(rootDir, e.BALLAST_DATA_DIR),
+    embeddedDbPort: e.BALLAST_DB_PORT,
+    sessionSecret: e.SESSION_SECRET,
+    trustProxy: e.TRUST_PROXY,
+    cookieSecure: e.COOKIE_SECURE === 'auto' ? 'auto' : e.COOKIE_SECURE === 'true',
+    login: { maxAttempts: e.LOGIN_MAX_ATTEMPTS, windowMinutes: e.LOGIN_WINDOW_MINUTES },
+    logLevel: e.LOG_LEVEL,
+    demo: e.BALLAST_DEMO ?? !e.DATABASE_URL,
+    rootDir,
+  };
+}

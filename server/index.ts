@@ -1,0 +1,60 @@
+import type { Server } from 'node:http';
+import { createApp } from './app';
+import { loadConfig } from './config/env';
+import { closeDatabase } from './db/sequelize';
+import { logger, setLogLevel } from './lib/logger';
+import { ensureClientBuilt } from './runtime/client-build';
+import { prepareDatabase } from './runtime/database';
+import { demoAccounts, seedDemo } from './runtime/seed';
+
+const say = (line: string): void => console.log(`[ballast] ${line}`);
+
+async function main(): Promise<void> {
+  const config = loadConfig();
+  setLogLevel(config.logLevel);
+  const { sequelize, embedded } = await prepareDatabase(config, say);
+  const demo = config.demo ? await seedDemo(say) : false;
+  if (!process.argv.includes('--no-build')) ensureClientBuilt(config.rootDir, say);
+
+  const app = createApp({ config, sequelize });
+  const server: Server = app.listen(config.port, config.host);
+  await new Promise<void>((resolve, reject) => {
+    server.once('listening', resolve);
+    server.once('error', reject);
+  });
+
+  say(`Ballast is running at ${config.publicUrl}`);
+  if (demo) {
+    say('Demo sign-ins (password for each):');
+    for (const account of demoAccounts)
+      say(`  ${account.role.padEnd(8)} ${account.email.padEnd(34)} ${account.password}`);
+  }
+  say('Press Ctrl-C to stop.');
+
+  let stopping = false;
+  const stop = async (signal: string): Promise<void> => {
+    if (stopping) return;
+    stopping = true;
+    say(`${signal} received; stopping...`);
+    await new Promise<void>((resolve) => {
+      server.close(() => resolve());
+      server.closeIdleConnections();
+    });
+    (app.locals.shutdown as () => void)();
+    await closeDatabase();
+    if (embedded) {
+      await embedded.stop();
+      say('MariaDB stopped cleanly.');
+    }
+    say('Stopped.');
+    process.exit(0);
+  };
+  process.on('SIGINT', () => void stop('SIGINT'));
+  process.on('SIGTERM', () => void stop('SIGTERM'));
+}
+
+main().catch((err: unknown) => {
+  logger.error({ err }, 'start failed');
+  console.error(`[ballast] ${err instanceof Error ? err.message : String(err)}`);
+  process.exit(1);
+});

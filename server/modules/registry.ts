@@ -1,0 +1,33 @@
+import { Router } from 'express';
+import type { RouteDef } from '../lib/route';
+import { guard } from '../middleware/guard';
+import { authRoutes } from './auth/auth.routes';
+import { categoryRoutes } from './categories/categories.routes';
+import { healthRoutes } from './health/health.routes';
+import { openapiRoutes } from './openapi/openapi.routes';
+import { userRoutes } from './users/users.routes';
+
+/** Every API route of Ballast. The role-matrix test and the OpenAPI document both read this list. */
+export const apiRoutes: RouteDef[] = [
+  ...healthRoutes,
+  ...authRoutes,
+  ...categoryRoutes,
+  ...userRoutes,
+  ...openapiRoutes,
+];
+
+export function buildApiRouter(routes: RouteDef[]): Router {
+  const router = Router();
+  for (const def of routes) {
+    router[def.method](def.path, guard(def.access), async (req, res) => {
+      const body = def.body ? def.body.parse(req.body ?? {}) : undefined;
+      const query = def.query ? def.query.parse(req.query) : undefined;
+      const result = await def.handler(req, res, { body, query });
+      if (res.headersSent || result === undefined) return;
+      if (res.statusCode === 200 && def.status) res.status(def.status);
+      if (res.statusCode === 204) res.end();
+      else res.json(result);
+    });
+  }
+  return router;
+}

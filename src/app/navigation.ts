@@ -1,0 +1,15 @@
+import type { RoleCode } from '../../shared/auth';
+
+export type NavItem = { to: string; label: string; roles: readonly RoleCode[] | 'any' };
+
+/** The navigation of each role; the server enforces the same rules on every route. */
+export const navItems: NavItem[] = [
+  { to: '/', label: 'Overview', roles: ['admin', 'ops', 'analyst', 'exec'] },
+  { to: '/', label: 'My categories', roles: ['manager'] },
+  { to: '/admin/people', label: 'People & ownership', roles: ['admin'] },
+  { to: '/admin/audit', label: 'Audit log', roles: ['admin'] },
+];
+
+export function navFor(role: RoleCode): NavItem[] {
+  return navItems.filter((item) => item.roles === 'any' || item.roles.includes(role));
+}

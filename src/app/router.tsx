@@ -1,0 +1,35 @@
+import { createBrowserRouter, redirect, type LoaderFunctionArgs } from 'react-router-dom';
+import { RouteError } from '../components/errors/route-error';
+import { AppShell } from '../components/layouts/app-shell';
+import { meQueryOptions } from '../features/auth/api/get-me';
+import { ApiError } from '../lib/api-client';
+import { queryClient } from '../lib/query-client';
+
+async function requireSignIn({ request }: LoaderFunctionArgs) {
+  try {
+    return await queryClient.ensureQueryData(meQueryOptions());
+  } catch (error) {
+    if (error instanceof ApiError && error.status === 401) {
+      const url = new URL(request.url);
+      throw redirect(`/sign-in?next=${encodeURIComponent(url.pathname + url.search)}`);
+    }
+    throw error;
+  }
+}
+
+export const router = createBrowserRouter([
+  { path: '/sign-in', lazy: () => import('./routes/auth/sign-in'), errorElement: <RouteError /> },
+  {
+    path: '/',
+    element: <AppShell />,
+    loader: requireSignIn,
+    errorElement: <RouteError />,
+    children: [
+      { index: true, lazy: () => import('./routes/portfolio/overview') },
+      { path: 'categories/:slug', lazy: () => import('./routes/portfolio/category') },
+      { path: 'admin/people', lazy: () => import('./routes/admin/people') },
+      { path: 'admin/audit', lazy: () => import('./routes/admin/audit') },
+      { path: '*', lazy: () => import('./routes/misc/not-found') },
+    ],
+  },
+]);

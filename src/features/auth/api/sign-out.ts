@@ -1,0 +1,17 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { api, rememberCsrfToken } from '../../../lib/api-client';
+
+export function signOut(): Promise<void> {
+  return api<void>('/api/auth/sign-out', { method: 'POST' });
+}
+
+export function useSignOut() {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: signOut,
+    onSettled: () => {
+      rememberCsrfToken(undefined);
+      queryClient.clear();
+    },
+  });
+}
