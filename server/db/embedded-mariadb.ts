@@ -15,6 +15,8 @@ export type EmbeddedMariadb = {
   port: number;
   socket: string;
   dir: string;
+  /** False when an instance left running from this data directory was reused. */
+  startedHere: boolean;
   stop: () => Promise<void>;
 };
 
@@ -191,6 +193,7 @@ export async function startEmbeddedMariadb(options: StartOptions): Promise<Embed
     port: options.port,
     socket,
     dir,
+    startedHere: child !== undefined,
     stop: async () => {
       if (!isAlive(pid)) return;
       process.kill(pid, 'SIGTERM');
