@@ -1,0 +1,70 @@
+/** mulberry32: a small, fast 32-bit PRNG; the demo must come out the same on every machine. */
+export function mulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** FNV-1a, to derive an independent stream per item from the scenario seed and a name. */
+export function hashString(text: string): number {
+  let h = 0x811c9dc5;
+  for (let i = 0; i < text.length; i++) {
+    h ^= text.charCodeAt(i);
+    h = Math.imul(h, 0x01000193);
+  }
+  return h >>> 0;
+}
+
+export class Random {
+  private readonly next: () => number;
+
+  constructor(seed: number) {
+    this.next = mulberry32(seed);
+  }
+
+  static derive(seed: number, name: string): Random {
+    return new Random((seed ^ hashString(name)) >>> 0);
+  }
+
+  float(): number {
+    return this.next();
+  }
+
+  /** Integer in [min, max]. */
+  int(min: number, max: number): number {
+    return min + Math.floor(this.next() * (max - min + 1));
+  }
+
+  chance(p: number): boolean {
+    return this.next() < p;
+  }
+
+  pick<T>(items: readonly T[]): T {
+    const item = items[Math.floor(this.next() * items.length)];
+    if (item === undefined) throw new Error('pick from an empty list');
+    return item;
+  }
+
+  /** Standard normal, Box–Muller. */
+  normal(): number {
+    const u = 1 - this.next();
+    const v = this.next();
+    return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * v);
+  }
+
+  /** Index drawn with the given (unnormalised) weights. */
+  weighted(weights: readonly number[]): number {
+    const total = weights.reduce((s, w) => s + w, 0);
+    let r = this.next() * total;
+    for (let i = 0; i < weights.length; i++) {
+      r -= weights[i] ?? 0;
+      if (r < 0) return i;
+    }
+    return weights.length - 1;
+  }
+}

@@ -1,0 +1,633 @@
+import { z } from 'zod';
+
+/*
+ * Ballast's own import formats: review-level and aggregate-level rows, as CSV (snake_case headers, every
+ * cell a string) and as JSON for the ingest API (camelCase keys, JSON-native values). Both paths share the
+ * field rules below so that a row means the same whichever way it arrives.
+ */
+
+export const importKinds = ['reviews', 'aggregates'] as const;
+export type ImportKind = (typeof importKinds)[number];
+
+export const importLimits = {
+  idMax: 128,
+  skuMax: 64,
+  titleMax: 500,
+  textMax: 20_000,
+  categoryMax: 64,
+  countMax: 100_000_000,
+  /** Dates before this are almost always a spreadsheet default (1899/1900/1970), not a real review. */
+  earliestDate: '1995-01-01',
+  /** The widest time-zone offset: a review dated "tomorrow" in Kiribati is not in the future. */
+  futureToleranceMs: 14 * 60 * 60 * 1000,
+  jsonRowsMax: 5_000,
+} as const;
+
+export interface ImportColumn {
+  name: string;
+  required: boolean;
+}
+
+export const reviewColumns = [
+  { name: 'review_id', required: true },
+  { name: 'sku', required: true },
+  { name: 'title', required: true },
+  { name: 'category', required: true },
+  { name: 'stars', required: true },
+  { name: 'reviewed_at', required: true },
+  { name: 'helpful_yes', required: false },
+  { name: 'helpful_no', required: false },
+  { name: 'reviewer_id', required: false },
+  { name: 'reviewer_score', required: false },
+  { name: 'verified', required: false },
+  { name: 'text', required: false },
+] as const satisfies readonly ImportColumn[];
+
+export const histogramColumns = ['stars_1', 'stars_2', 'stars_3', 'stars_4', 'stars_5'] as const;
+
+export const aggregateColumns = [
+  { name: 'sku', required: true },
+  { name: 'title', required: true },
+  { name: 'category', required: true },
+  { name: 'observed_on', required: true },
+  { name: 'review_count', required: true },
+  { name: 'mean_stars', required: true },
+  ...histogramColumns.map((name) => ({ name, required: false })),
+  { name: 'newest_review_at', required: false },
+] as const satisfies readonly ImportColumn[];
+
+export type ReviewColumnName = (typeof reviewColumns)[number]['name'];
+export type AggregateColumnName = (typeof aggregateColumns)[number]['name'];
+
+export const columnsByKind: Record<ImportKind, readonly ImportColumn[]> = {
+  reviews: reviewColumns,
+  aggregates: aggregateColumns,
+};
+
+/** One problem with one row. `line` is the physical line where the record starts (header = line 1). */
+export const rowErrorSchema = z.object({
+  line: z.number().int(),
+  column: z.string().optional(),
+  reason: z.string(),
+  raw: z.string().optional(),
+});
+export type RowError = z.infer<typeof rowErrorSchema>;
+
+const isoDatePattern = /^(\d{4})-(\d{2})-(\d{2})$/;
+const isoDateTimePattern =
+  /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2})(?:\.(\d{1,9}))?)?(Z|[+-]\d{2}:?\d{2})?$/i;
+
+function utcDate(year: number, month: number, day: number): Date | null {
+  const date = new Date(Date.UTC(year, month - 1, day));
+  const valid =
+    date.getUTCFullYear() === year && date.getUTCMonth() === month - 1 && date.getUTCDate() === day;
+  return valid ? date : null;
+}
+
+/** `YYYY-MM-DD` only; returns midnight UTC, or null for anything else (including 2026-02-30). */
+export function parseIsoDate(value: string): Date | null {
+  const m = isoDatePattern.exec(value.trim());
+  if (!m) return null;
+  return utcDate(Number(m[1]), Number(m[2]), Number(m[3]));
+}
+
+/**
+ * `YYYY-MM-DD`, or `YYYY-MM-DDTHH:mm[:ss[.fff]][Z|±HH:MM|±HHMM]` (a space may replace the `T`). A
+ * date-time without an offset is read as UTC; a date alone is midnight UTC. Nothing else is accepted:
+ * `01/02/2026` means different days in different countries.
+ */
+export function parseTimestamp(value: string): Date | null {
+  const text = value.trim();
+  if (isoDatePattern.test(text)) return parseIsoDate(text);
+  const m = isoDateTimePattern.exec(text);
+  if (!m) return null;
+  const day = utcDate(Number(m[1]), Number(m[2]), Number(m[3]));
+  const [hours, minutes, seconds] = [Number(m[4]), Number(m[5]), Number(m[6] ?? 0)];
+  if (!day || hours > 23 || minutes > 59 || seconds > 59) return null;
+  const millis = Number((m[7] ?? '0').padEnd(3, '0').slice(0, 3));
+  let offsetMinutes = 0;
+  const zone = m[8];
+  if (zone && zone.toUpperCase() !== 'Z') {
+    const digits = zone.slice(1).replace(':', '');
+    const [oh, om] = [Number(digits.slice(0, 2)), Number(digits.slice(2))];
+    if (oh > 14 || om > 59) return null;
+    offsetMinutes = (zone.startsWith('-') ? -1 : 1) * (oh * 60 + om);
+  }
+  return new Date(day.getTime() + ((hours * 60 + minutes - offsetMinutes) * 60 + seconds) * 1000 + millis);
+}
+
+const earliest = parseIsoDate(importLimits.earliestDate)!;
+
+/** Shared by every date field: the reason a parsed date is not acceptable, or null. */
+function dateProblem(column: string, date: Date, now: Date): string | null {
+  if (date.getTime() > now.getTime() + importLimits.futureToleranceMs) return `${column} is in the future`;
+  if (date < earliest)
+    return `${column} is before ${importLimits.earliestDate}; is it a spreadsheet default?`;
+  return null;
+}
+
+/** "in the future" is relative to a clock the caller supplies, so tests and re-runs are reproducible. */
+export type Clock = () => Date;
+
+function timestampField(column: string, clock: Clock, dateOnly = false) {
+  const hint = dateOnly ? 'YYYY-MM-DD' : 'YYYY-MM-DD or YYYY-MM-DDTHH:mm:ssZ';
+  return z.string().transform((value, ctx) => {
+    const date = dateOnly ? parseIsoDate(value) : parseTimestamp(value);
+    if (!date) {
+      ctx.addIssue({ code: 'custom', message: `${column} is not a date in the form ${hint}` });
+      return z.NEVER;
+    }
+    const problem = dateProblem(column, date, clock());
+    if (problem) {
+      ctx.addIssue({ code: 'custom', message: problem });
+      return z.NEVER;
+    }
+    return date;
+  });
+}
+
+const slugPattern = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
+const decimalPattern = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)$/;
+
+const requiredText = (column: string, max: number) =>
+  z
+    .string({ error: `${column} is missing` })
+    .trim()
+    .min(1, { error: `${column} is missing` })
+    .max(max, { error: `${column} is longer than ${max} characters` });
+
+const categoryField = z
+  .string({ error: 'category is missing' })
+  .trim()
+  .min(1, { error: 'category is missing' })
+  .toLowerCase()
+  .max(importLimits.categoryMax, { error: `category is longer than ${importLimits.categoryMax} characters` })
+  .regex(slugPattern, { error: 'category must be a slug: letters, digits and single hyphens' });
+
+const optionalTitle = z
+  .string()
+  .trim()
+  .max(importLimits.titleMax, { error: `title is longer than ${importLimits.titleMax} characters` })
+  .optional()
+  .transform((value) => (value ? value : undefined));
+
+const optionalId = (column: string) =>
+  z
+    .string()
+    .trim()
+    .max(importLimits.idMax, { error: `${column} is longer than ${importLimits.idMax} characters` })
+    .nullish()
+    .transform((value) => (value ? value : null));
+
+/** Review texts are kept exactly as written (no trimming) and cut at the cap rather than rejected. */
+const textField = z
+  .string()
+  .nullish()
+  .transform((value) => (value && value.trim() !== '' ? value.slice(0, importLimits.textMax) : null));
+
+// ---------------------------------------------------------------- CSV cells (strings in, typed out)
+
+const blankToUndefined = (value: unknown) =>
+  typeof value === 'string' && value.trim() === '' ? undefined : value;
+
+const wholeNumberMessage = (column: string, min: number, max: number) =>
+  max >= importLimits.countMax
+    ? `${column} must be a whole number, ${min} or more`
+    : `${column} must be a whole number from ${min} to ${max}`;
+
+const cellWholeNumber = (column: string, min: number, max: number, fallback?: number) =>
+  z.preprocess(
+    (value) => blankToUndefined(value) ?? (fallback === undefined ? undefined : String(fallback)),
+    z
+      .string({ error: `${column} is missing` })
+      .trim()
+      .regex(/^[+-]?\d+$/, { error: wholeNumberMessage(column, min, max) })
+      .transform(Number)
+      .pipe(
+        z
+          .number()
+          .min(min, { error: wholeNumberMessage(column, min, max) })
+          .max(max, { error: wholeNumberMessage(column, min, max) }),
+      ),
+  );
+
+const cellDecimal = (column: string, min: number, max: number) =>
+  z
+    .string()
+    .trim()
+    .regex(decimalPattern, { error: `${column} must be a number from ${min} to ${max}` })
+    .transform(Number)
+    .pipe(
+      z
+        .number()
+        .min(min, { error: `${column} must be a number from ${min} to ${max}` })
+        .max(max, { error: `${column} must be a number from ${min} to ${max}` }),
+    );
+
+const booleanWords: Record<string, boolean> = {
+  true: true,
+  yes: true,
+  '1': true,
+  false: false,
+  no: false,
+  '0': false,
+};
+
+const cellBoolean = (column: string) =>
+  z.preprocess(
+    blankToUndefined,
+    z
+      .string()
+      .trim()
+      .toLowerCase()
+      .refine((value) => value in booleanWords, {
+        error: `${column} must be true/false, yes/no or 1/0`,
+      })
+      .transform((value) => booleanWords[value] ?? null)
+      .optional()
+      .transform((value) => value ?? null),
+  );
+
+const optionalCell = <T extends z.ZodType>(schema: T) =>
+  z.preprocess(blankToUndefined, schema.optional()).transform((value) => value ?? null);
+
+/** A validated review row, as the importer, the ingest API and the demo generator all produce it. */
+export interface ReviewRow {
+  reviewId: string;
+  sku: string;
+  title: string;
+  category: string;
+  stars: number;
+  reviewedAt: Date;
+  helpfulYes: number;
+  helpfulNo: number;
+  reviewerId: string | null;
+  reviewerScore: number | null;
+  verified: boolean | null;
+  text: string | null;
+}
+
+/** A validated aggregate observation. `histogram` holds the counts of 1..5 stars, in that order. */
+export interface AggregateRow {
+  sku: string;
+  title: string;
+  category: string;
+  observedOn: string;
+  reviewCount: number;
+  meanStars: number | null;
+  histogram: [number, number, number, number, number] | null;
+  newestReviewAt: Date | null;
+}
+
+/** Before the cross-row rule "title may be left blank after the first row of an item" is applied. */
+export type ReviewRowDraft = Omit<ReviewRow, 'title'> & { title: string | undefined };
+export type AggregateRowDraft = Omit<AggregateRow, 'title'> & { title: string | undefined };
+
+export function createReviewCsvRowSchema(clock: Clock) {
+  return z
+    .object({
+      review_id: requiredText('review_id', importLimits.idMax),
+      sku: requiredText('sku', importLimits.skuMax),
+      title: optionalTitle,
+      category: categoryField,
+      stars: cellWholeNumber('stars', 1, 5),
+      reviewed_at: z.preprocess(
+        blankToUndefined,
+        z.string({ error: 'reviewed_at is missing' }).pipe(timestampField('reviewed_at', clock)),
+      ),
+      helpful_yes: cellWholeNumber('helpful_yes', 0, importLimits.countMax, 0),
+      helpful_no: cellWholeNumber('helpful_no', 0, importLimits.countMax, 0),
+      reviewer_id: optionalId('reviewer_id'),
+      reviewer_score: optionalCell(cellDecimal('reviewer_score', 0, 1)),
+      verified: cellBoolean('verified'),
+      text: textField,
+    })
+    .transform((r): ReviewRowDraft => ({
+      reviewId: r.review_id,
+      sku: r.sku,
+      title: r.title,
+      category: r.category,
+      stars: r.stars,
+      reviewedAt: r.reviewed_at,
+      helpfulYes: r.helpful_yes,
+      helpfulNo: r.helpful_no,
+      reviewerId: r.reviewer_id,
+      reviewerScore: r.reviewer_score,
+      verified: r.verified,
+      text: r.text,
+    }));
+}
+
+/** Decimal places written, so "4.3" may stand for anything that rounds to it. */
+function roundingTolerance(written: string): number {
+  const decimals = written.includes('.') ? written.split('.')[1]!.replace(/e.*$/i, '').length : 0;
+  return 0.5 * 10 ** -decimals + 1e-9;
+}
+
+type Histogram = [number, number, number, number, number];
+
+/** The cross-field rules of an aggregate observation; returns reasons keyed by column. */
+export function aggregateProblems(a: {
+  observedOn: Date;
+  reviewCount: number;
+  meanStars: number | null;
+  meanWritten: string | null;
+  histogram: (number | null)[] | null;
+  newestReviewAt: Date | null;
+}): { column: string; message: string }[] {
+  const problems: { column: string; message: string }[] = [];
+  if (a.reviewCount > 0 && a.meanStars === null)
+    problems.push({ column: 'mean_stars', message: 'mean_stars is required when review_count is above 0' });
+  if (a.reviewCount === 0 && a.meanStars !== null)
+    problems.push({ column: 'mean_stars', message: 'mean_stars must be empty when review_count is 0' });
+  if (a.histogram) {
+    const given = a.histogram.filter((n) => n !== null).length;
+    if (given !== 0 && given !== 5) {
+      problems.push({ column: 'stars_1', message: 'stars_1..stars_5 must be all filled or all empty' });
+    } else if (given === 5) {
+      const counts = a.histogram as number[];
+      const total = counts.reduce((s, n) => s + n, 0);
+      if (total !== a.reviewCount) {
+        problems.push({
+          column: 'stars_1',
+          message: `stars_1..stars_5 add up to ${total}, but review_count is ${a.reviewCount}`,
+        });
+      } else if (total > 0 && a.meanStars !== null) {
+        const mean = counts.reduce((s, n, i) => s + n * (i + 1), 0) / total;
+        if (Math.abs(mean - a.meanStars) > roundingTolerance(a.meanWritten ?? String(a.meanStars)))
+          problems.push({
+            column: 'mean_stars',
+            message: `mean_stars ${a.meanStars} disagrees with the star counts, whose mean is ${mean.toFixed(3)}`,
+          });
+      }
+    }
+  }
+  if (a.newestReviewAt) {
+    if (a.reviewCount === 0)
+      problems.push({
+        column: 'newest_review_at',
+        message: 'newest_review_at must be empty when review_count is 0',
+      });
+    else if (
+      a.newestReviewAt.getTime() >=
+      a.observedOn.getTime() + 24 * 3600 * 1000 + importLimits.futureToleranceMs
+    )
+      problems.push({ column: 'newest_review_at', message: 'newest_review_at is after observed_on' });
+  }
+  return problems;
+}
+
+function addAggregateProblems(
+  ctx: z.RefinementCtx,
+  problems: { column: string; message: string }[],
+  path: (column: string) => PropertyKey[],
+) {
+  for (const p of problems) ctx.addIssue({ code: 'custom', message: p.message, path: path(p.column) });
+}
+
+export function createAggregateCsvRowSchema(clock: Clock) {
+  return z
+    .object({
+      sku: requiredText('sku', importLimits.skuMax),
+      title: optionalTitle,
+      category: categoryField,
+      observed_on: z.preprocess(
+        blankToUndefined,
+        z.string({ error: 'observed_on is missing' }).pipe(timestampField('observed_on', clock, true)),
+      ),
+      review_count: cellWholeNumber('review_count', 0, importLimits.countMax),
+      mean_stars: z.preprocess(blankToUndefined, z.string().optional()),
+      stars_1: optionalCell(cellWholeNumber('stars_1', 0, importLimits.countMax)),
+      stars_2: optionalCell(cellWholeNumber('stars_2', 0, importLimits.countMax)),
+      stars_3: optionalCell(cellWholeNumber('stars_3', 0, importLimits.countMax)),
+      stars_4: optionalCell(cellWholeNumber('stars_4', 0, importLimits.countMax)),
+      stars_5: optionalCell(cellWholeNumber('stars_5', 0, importLimits.countMax)),
+      newest_review_at: optionalCell(z.string().pipe(timestampField('newest_review_at', clock))),
+    })
+    .superRefine((r, ctx) => {
+      let meanStars: number | null = null;
+      if (r.mean_stars !== undefined) {
+        const parsed = cellDecimal('mean_stars', 1, 5).safeParse(r.mean_stars);
+        if (!parsed.success) {
+          ctx.addIssue({
+            code: 'custom',
+            message: 'mean_stars must be a number from 1 to 5',
+            path: ['mean_stars'],
+          });
+          return;
+        }
+        meanStars = parsed.data;
+      }
+      const histogram = [r.stars_1, r.stars_2, r.stars_3, r.stars_4, r.stars_5];
+      addAggregateProblems(
+        ctx,
+        aggregateProblems({
+          observedOn: r.observed_on,
+          reviewCount: r.review_count,
+          meanStars,
+          meanWritten: r.mean_stars?.trim() ?? null,
+          histogram,
+          newestReviewAt: r.newest_review_at,
+        }),
+        (column) => [column],
+      );
+    })
+    .transform((r): AggregateRowDraft => ({
+      sku: r.sku,
+      title: r.title,
+      category: r.category,
+      observedOn: r.observed_on.toISOString().slice(0, 10),
+      reviewCount: r.review_count,
+      meanStars: r.mean_stars === undefined ? null : Number(r.mean_stars.trim()),
+      histogram:
+        r.stars_1 === null ? null : ([r.stars_1, r.stars_2, r.stars_3, r.stars_4, r.stars_5] as Histogram),
+      newestReviewAt: r.newest_review_at,
+    }));
+}
+
+// ---------------------------------------------------------------- JSON ingest (typed values in)
+
+const wholeNumber = (column: string, min: number, max: number) =>
+  z
+    .number({ error: wholeNumberMessage(column, min, max) })
+    .int({ error: wholeNumberMessage(column, min, max) })
+    .min(min, { error: wholeNumberMessage(column, min, max) })
+    .max(max, { error: wholeNumberMessage(column, min, max) });
+
+export function createReviewJsonRowSchema(clock: Clock) {
+  return z
+    .object({
+      reviewId: requiredText('reviewId', importLimits.idMax),
+      sku: requiredText('sku', importLimits.skuMax),
+      title: optionalTitle,
+      category: categoryField,
+      stars: wholeNumber('stars', 1, 5),
+      reviewedAt: z.string({ error: 'reviewedAt is missing' }).pipe(timestampField('reviewedAt', clock)),
+      helpfulYes: wholeNumber('helpfulYes', 0, importLimits.countMax).default(0),
+      helpfulNo: wholeNumber('helpfulNo', 0, importLimits.countMax).default(0),
+      reviewerId: optionalId('reviewerId'),
+      reviewerScore: z
+        .number({ error: 'reviewerScore must be a number from 0 to 1' })
+        .min(0, { error: 'reviewerScore must be a number from 0 to 1' })
+        .max(1, { error: 'reviewerScore must be a number from 0 to 1' })
+        .nullish()
+        .transform((value) => value ?? null),
+      verified: z
+        .boolean({ error: 'verified must be true or false' })
+        .nullish()
+        .transform((value) => value ?? null),
+      text: textField,
+    })
+    .strict();
+}
+
+export function createAggregateJsonRowSchema(clock: Clock) {
+  const count = (column: string) => wholeNumber(column, 0, importLimits.countMax);
+  return z
+    .object({
+      sku: requiredText('sku', importLimits.skuMax),
+      title: optionalTitle,
+      category: categoryField,
+      observedOn: z
+        .string({ error: 'observedOn is missing' })
+        .pipe(timestampField('observedOn', clock, true)),
+      reviewCount: count('reviewCount'),
+      meanStars: z
+        .number({ error: 'meanStars must be a number from 1 to 5' })
+        .min(1, { error: 'meanStars must be a number from 1 to 5' })
+        .max(5, { error: 'meanStars must be a number from 1 to 5' })
+        .nullish()
+        .transform((value) => value ?? null),
+      histogram: z
+        .tuple(
+          [
+            count('histogram[0]'),
+            count('histogram[1]'),
+            count('histogram[2]'),
+            count('histogram[3]'),
+            count('histogram[4]'),
+          ],
+          {
+            error: 'histogram must be five counts, for 1 to 5 stars',
+          },
+        )
+        .nullish()
+        .transform((value) => value ?? null),
+      newestReviewAt: z
+        .string()
+        .pipe(timestampField('newestReviewAt', clock))
+        .nullish()
+        .transform((value) => value ?? null),
+    })
+    .strict()
+    .superRefine((r, ctx) => {
+      const jsonNames: Record<string, string> = {
+        mean_stars: 'meanStars',
+        stars_1: 'histogram',
+        newest_review_at: 'newestReviewAt',
+      };
+      addAggregateProblems(
+        ctx,
+        aggregateProblems({
+          observedOn: r.observedOn,
+          reviewCount: r.reviewCount,
+          meanStars: r.meanStars,
+          meanWritten: null,
+          histogram: r.histogram,
+          newestReviewAt: r.newestReviewAt,
+        }).map((p) => ({ column: jsonNames[p.column] ?? p.column, message: p.message })),
+        (column) => [column],
+      );
+    })
+    .transform((r): AggregateRowDraft => ({ ...r, observedOn: r.observedOn.toISOString().slice(0, 10) }));
+}
+
+/**
+ * Rules that span rows of one file or one request: a review id appears once; an item's title must be
+ * given on its first row and may be left blank afterwards (later rows inherit it).
+ */
+export class CrossRowRules {
+  private readonly firstLineByKey = new Map<string, number>();
+  private readonly titleByItem = new Map<string, string>();
+
+  constructor(private readonly kind: ImportKind) {}
+
+  /** The line of an earlier row with the same key, or undefined (and the key is remembered). */
+  duplicateOf(key: string, line: number): number | undefined {
+    const first = this.firstLineByKey.get(key);
+    if (first === undefined) this.firstLineByKey.set(key, line);
+    return first;
+  }
+
+  duplicateKey(row: ReviewRowDraft | AggregateRowDraft): string {
+    return this.kind === 'reviews'
+      ? (row as ReviewRowDraft).reviewId
+      : `${row.category}\u0000${row.sku}\u0000${(row as AggregateRowDraft).observedOn}`;
+  }
+
+  duplicateReason(firstLine: number, firstIsIndex = false): string {
+    const where = firstIsIndex ? `row ${firstLine}` : `line ${firstLine}`;
+    return this.kind === 'reviews'
+      ? `review_id already appeared on ${where}`
+      : `this item already has an observation for observed_on on ${where}`;
+  }
+
+  /** Remembers a row's title (even if the row is otherwise invalid, it names the item) and returns the title to use. */
+  resolveTitle(category: string, sku: string, title: string | undefined): string | undefined {
+    const item = `${category}\u0000${sku}`;
+    if (title !== undefined) {
+      if (!this.titleByItem.has(item)) this.titleByItem.set(item, title);
+      return title;
+    }
+    return this.titleByItem.get(item);
+  }
+}
+
+export const titleMissingReason = 'title is missing: give it on the first row of each sku';
+
+function ingestRows<T extends ReviewRowDraft | AggregateRowDraft, R>(kind: ImportKind, row: z.ZodType<T>) {
+  return z
+    .array(row)
+    .min(1, { error: 'rows is empty' })
+    .max(importLimits.jsonRowsMax, { error: `at most ${importLimits.jsonRowsMax} rows per request` })
+    .transform((rows, ctx) => {
+      const rules = new CrossRowRules(kind);
+      const out: R[] = [];
+      rows.forEach((r, index) => {
+        const first = rules.duplicateOf(rules.duplicateKey(r), index);
+        if (first !== undefined)
+          ctx.addIssue({ code: 'custom', path: [index], message: rules.duplicateReason(first, true) });
+        const title = rules.resolveTitle(r.category, r.sku, r.title);
+        if (title === undefined)
+          ctx.addIssue({ code: 'custom', path: [index, 'title'], message: titleMissingReason });
+        out.push({ ...r, title: title ?? '' } as R);
+      });
+      return out;
+    });
+}
+
+/**
+ * Bodies of `POST` to the ingest API. The clock decides what "in the future" means; the default reads the
+ * time at each parse.
+ */
+export function createIngestBodySchema(clock: Clock = () => new Date()) {
+  return z.discriminatedUnion('kind', [
+    z.object({
+      kind: z.literal('reviews'),
+      rows: ingestRows<ReviewRowDraft, ReviewRow>('reviews', createReviewJsonRowSchema(clock)),
+    }),
+    z.object({
+      kind: z.literal('aggregates'),
+      rows: ingestRows<AggregateRowDraft, AggregateRow>('aggregates', createAggregateJsonRowSchema(clock)),
+    }),
+  ]);
+}
+
+export const ingestBodySchema = createIngestBodySchema();
+/** What a client sends (dates as ISO strings). */
+export type IngestBodyInput = z.input<typeof ingestBodySchema>;
+export type ReviewIngestRowInput = Extract<IngestBodyInput, { kind: 'reviews' }>['rows'][number];
+export type AggregateIngestRowInput = Extract<IngestBodyInput, { kind: 'aggregates' }>['rows'][number];
+/** What the server gets after validation. */
+export type IngestBody =
+  { kind: 'reviews'; rows: ReviewRow[] } | { kind: 'aggregates'; rows: AggregateRow[] };
