@@ -1,14 +1,34 @@
 import type { Sequelize } from 'sequelize';
+import { AggregateObservation } from './aggregate-observation.model';
+import { ApiToken } from './api-token.model';
 import { AuditEvent } from './audit-event.model';
 import { CategoryOwner } from './category-owner.model';
 import { Category } from './category.model';
+import { ImportBatch } from './import-batch.model';
+import { ImportRowError } from './import-row-error.model';
+import { Item } from './item.model';
+import { Review } from './review.model';
 import { Role } from './role.model';
 import { Session } from './session.model';
 import { User } from './user.model';
 
 /** Initialises every model on one connection and declares the associations in one place. */
 export function initModels(sequelize: Sequelize): void {
-  for (const model of [Role, User, Category, CategoryOwner, Session, AuditEvent]) model.initModel(sequelize);
+  const models = [
+    Role,
+    User,
+    Category,
+    CategoryOwner,
+    Session,
+    AuditEvent,
+    Item,
+    Review,
+    AggregateObservation,
+    ImportBatch,
+    ImportRowError,
+    ApiToken,
+  ];
+  for (const model of models) model.initModel(sequelize);
 
   User.belongsTo(Role, { foreignKey: 'role', targetKey: 'code', as: 'roleInfo' });
   Category.belongsToMany(User, {
@@ -24,6 +44,27 @@ export function initModels(sequelize: Sequelize): void {
     as: 'ownedCategories',
   });
   AuditEvent.belongsTo(User, { foreignKey: 'actorUserId', as: 'actor', constraints: false });
+  Category.hasMany(Item, { foreignKey: 'categoryId', as: 'items' });
+  Item.belongsTo(Category, { foreignKey: 'categoryId', as: 'category' });
+  Item.hasMany(Review, { foreignKey: 'itemId', as: 'reviews' });
+  Review.belongsTo(Item, { foreignKey: 'itemId', as: 'item' });
+  Item.hasMany(AggregateObservation, { foreignKey: 'itemId', as: 'observations' });
+  AggregateObservation.belongsTo(Item, { foreignKey: 'itemId', as: 'item' });
+  ImportBatch.hasMany(ImportRowError, { foreignKey: 'batchId', as: 'rowErrors' });
+  ImportBatch.belongsTo(User, { foreignKey: 'userId', as: 'user', constraints: false });
 }
 
-export { AuditEvent, Category, CategoryOwner, Role, Session, User };
+export {
+  AggregateObservation,
+  ApiToken,
+  AuditEvent,
+  Category,
+  CategoryOwner,
+  ImportBatch,
+  ImportRowError,
+  Item,
+  Review,
+  Role,
+  Session,
+  User,
+};
