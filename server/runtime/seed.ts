@@ -1,5 +1,6 @@
 import type { RoleCode } from '../../shared/auth';
 import { Category, CategoryOwner, User } from '../db/models';
+import { demoCategories } from '../demo/scenario';
 import { hashPassword } from '../modules/auth/auth.service';
 
 export type DemoAccount = { role: RoleCode; email: string; name: string; password: string };
@@ -28,18 +29,8 @@ export const demoAccounts: DemoAccount[] = [
   { role: 'exec', email: 'esme.exec@demo.ballast.test', name: 'Esme Halloway', password: 'demo-exec-pass' },
 ];
 
-export const demoCategories = [
-  {
-    slug: 'kitchen-kettles',
-    name: 'Kettles & Brewers',
-    description: 'Electric kettles, pour-over brewers and tea makers.',
-  },
-  { slug: 'trail-lighting', name: 'Trail Lighting', description: 'Head torches, lanterns and camp lights.' },
-  { slug: 'desk-audio', name: 'Desk Audio', description: 'Small speakers, headphones and desk amplifiers.' },
-];
-
-/** The manager owns the first two demo categories, so the third shows what "not yours" looks like. */
-const managerCategories = ['kitchen-kettles', 'trail-lighting'];
+/** The demo manager owns two categories, so the others show what "not yours" looks like. */
+export const demoManagerCategories = ['kettles-and-brewers', 'portable-power'];
 
 /** Seeds the demo accounts and categories once; later starts find them and leave everything alone. */
 export async function seedDemo(log: (line: string) => void): Promise<boolean> {
@@ -60,8 +51,13 @@ export async function seedDemo(log: (line: string) => void): Promise<boolean> {
     );
   }
   for (const category of demoCategories) {
-    const row = await Category.create({ ...category, settings: {} });
-    if (managerCategories.includes(category.slug)) {
+    const row = await Category.create({
+      slug: category.slug,
+      name: category.name,
+      description: category.description,
+      settings: category.settings,
+    });
+    if (demoManagerCategories.includes(category.slug)) {
       await CategoryOwner.create({ categoryId: row.id, userId: users.get('manager')!.id });
     }
   }

@@ -74,13 +74,13 @@ describe('signing in through the browser', () => {
   it('sends a visitor without a session to sign-in and back to the page they asked for', async () => {
     const analyst = demoAccounts.find((a) => a.role === 'analyst')!;
     const page = await browser.newPage();
-    await page.goto(`${server.url}/categories/desk-audio`);
+    await page.goto(`${server.url}/categories/desk-lighting`);
     await page.getByRole('heading', { name: 'Sign in to Ballast' }).waitFor();
-    expect(new URL(page.url()).searchParams.get('next')).toBe('/categories/desk-audio');
+    expect(new URL(page.url()).searchParams.get('next')).toBe('/categories/desk-lighting');
     await page.getByLabel('E-mail').fill(analyst.email);
     await page.getByLabel('Password').fill(analyst.password);
     await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.getByRole('heading', { name: 'Desk Audio' }).waitFor();
+    await page.getByRole('heading', { name: 'Desk Lighting' }).waitFor();
     await page.close();
   });
 
@@ -91,7 +91,7 @@ describe('signing in through the browser', () => {
     await page.getByRole('heading', { name: 'My categories' }).waitFor();
     await page.goto(`${server.url}/no/such/page`);
     await page.getByRole('heading', { name: 'There is no such page in Ballast' }).waitFor();
-    await page.goto(`${server.url}/categories/desk-audio`);
+    await page.goto(`${server.url}/categories/desk-lighting`);
     await page.getByRole('heading', { name: 'Not available to you' }).waitFor();
     expect(await page.getByText('This category is not one of yours.').count()).toBe(1);
     await page.screenshot({ path: path.join(screenshotDir, 'category-forbidden.png') });

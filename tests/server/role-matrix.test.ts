@@ -26,8 +26,8 @@ const expected: Record<string, Allowed> = {
 };
 
 /** Category-scoped routes: a manager reaches the categories they own and gets 403 on the others. */
-const ownedSlug = 'kitchen-kettles';
-const foreignSlug = 'desk-audio';
+const ownedSlug = 'kettles-and-brewers';
+const foreignSlug = 'desk-lighting';
 
 const key = (method: string, path: string) => `${method.toUpperCase()} ${path}`;
 
@@ -89,7 +89,7 @@ describe('role matrix over every registered API route', () => {
     }
     const list = await manager.get('/api/categories').expect(200);
     expect((list.body as { slug: string }[]).map((c) => c.slug).sort()).toEqual([
-      'kitchen-kettles',
+      'kettles-and-brewers',
       'trail-lighting',
     ]);
   });

@@ -86,18 +86,18 @@ describe('PATCH /api/admin/users/:id and ownership', () => {
     const manager = users.find((u) => u.role === 'manager')!;
     const ops = users.find((u) => u.role === 'ops')!;
     const ok = await admin
-      .put('/api/admin/categories/desk-audio/owners')
+      .put('/api/admin/categories/desk-lighting/owners')
       .set('x-csrf-token', admin.csrf)
       .send({ userIds: [manager.id] })
       .expect(200);
     expect(ok.body.owners.map((o: { id: number }) => o.id)).toEqual([manager.id]);
     const bad = await admin
-      .put('/api/admin/categories/desk-audio/owners')
+      .put('/api/admin/categories/desk-lighting/owners')
       .set('x-csrf-token', admin.csrf)
       .send({ userIds: [ops.id] })
       .expect(400);
     expect(bad.body.error.message).toMatch(/Only users with the category manager role/);
     const managerAgent = await t.signIn('manager');
-    await managerAgent.get('/api/categories/desk-audio').expect(200);
+    await managerAgent.get('/api/categories/desk-lighting').expect(200);
   });
 });
