@@ -90,7 +90,7 @@ describe('role matrix over every registered API route', () => {
     const list = await manager.get('/api/categories').expect(200);
     expect((list.body as { slug: string }[]).map((c) => c.slug).sort()).toEqual([
       'kettles-and-brewers',
-      'trail-lighting',
+      'portable-power',
     ]);
   });
 });
