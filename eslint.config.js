@@ -1,6 +1,6 @@
 import js from '@eslint/js';
 import pluginQuery from '@tanstack/eslint-plugin-query';
-import { importX } from 'eslint-plugin-import-x';
+import { createNodeResolver, importX } from 'eslint-plugin-import-x';
 import reactHooks from 'eslint-plugin-react-hooks';
 import globals from 'globals';
 import tseslint from 'typescript-eslint';
@@ -14,7 +14,9 @@ export default tseslint.config(
     files: ['**/*.{ts,tsx}'],
     plugins: { 'import-x': importX, 'react-hooks': reactHooks },
     languageOptions: { globals: { ...globals.browser, ...globals.node } },
-    settings: { 'import-x/resolver': { node: { extensions: ['.ts', '.tsx', '.js'] } } },
+    settings: {
+      'import-x/resolver-next': [createNodeResolver({ extensions: ['.ts', '.tsx', '.js', '.json'] })],
+    },
     rules: {
       ...reactHooks.configs.recommended.rules,
       'import-x/order': [

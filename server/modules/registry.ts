@@ -5,6 +5,7 @@ import { authRoutes } from './auth/auth.routes';
 import { categoryRoutes } from './categories/categories.routes';
 import { healthRoutes } from './health/health.routes';
 import { openapiRoutes } from './openapi/openapi.routes';
+import { scoreRoutes } from './score/score.routes';
 import { userRoutes } from './users/users.routes';
 
 /** Every API route of Ballast. The role-matrix test and the OpenAPI document both read this list. */
@@ -14,6 +15,7 @@ export const apiRoutes: RouteDef[] = [
   ...categoryRoutes,
   ...userRoutes,
   ...openapiRoutes,
+  ...scoreRoutes,
 ];
 
 export function buildApiRouter(routes: RouteDef[]): Router {

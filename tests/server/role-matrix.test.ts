@@ -23,6 +23,7 @@ const expected: Record<string, Allowed> = {
   'POST /api/admin/users': ['admin'],
   'PATCH /api/admin/users/:id': ['admin'],
   'GET /api/admin/audit': ['admin'],
+  'POST /api/score': 'signed-in',
 };
 
 /** Category-scoped routes: a manager reaches the categories they own and gets 403 on the others. */

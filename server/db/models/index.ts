@@ -10,6 +10,8 @@ import { Item } from './item.model';
 import { Review } from './review.model';
 import { Role } from './role.model';
 import { Session } from './session.model';
+import { SnapshotRow } from './snapshot-row.model';
+import { Snapshot } from './snapshot.model';
 import { User } from './user.model';
 
 /** Initialises every model on one connection and declares the associations in one place. */
@@ -27,6 +29,8 @@ export function initModels(sequelize: Sequelize): void {
     ImportBatch,
     ImportRowError,
     ApiToken,
+    Snapshot,
+    SnapshotRow,
   ];
   for (const model of models) model.initModel(sequelize);
 
@@ -52,6 +56,10 @@ export function initModels(sequelize: Sequelize): void {
   AggregateObservation.belongsTo(Item, { foreignKey: 'itemId', as: 'item' });
   ImportBatch.hasMany(ImportRowError, { foreignKey: 'batchId', as: 'rowErrors' });
   ImportBatch.belongsTo(User, { foreignKey: 'userId', as: 'user', constraints: false });
+  Snapshot.belongsTo(Category, { foreignKey: 'categoryId', as: 'category' });
+  Snapshot.hasMany(SnapshotRow, { foreignKey: 'snapshotId', as: 'rows' });
+  SnapshotRow.belongsTo(Snapshot, { foreignKey: 'snapshotId', as: 'snapshot' });
+  SnapshotRow.belongsTo(Item, { foreignKey: 'itemId', as: 'item' });
 }
 
 export {
@@ -66,5 +74,7 @@ export {
   Review,
   Role,
   Session,
+  Snapshot,
+  SnapshotRow,
   User,
 };

@@ -1,0 +1,17 @@
+import { scoreRequestSchema, scoreResponseSchema } from '../../../shared/schemas/score.schema';
+import { access, route } from '../../lib/route';
+import { scoreItems } from './score.service';
+
+export const scoreRoutes = [
+  route({
+    method: 'post',
+    path: '/api/score',
+    tag: 'scoring',
+    summary:
+      'Score items (count + mean, a star histogram, or individual reviews) with the naive and smoothed orderings, recency, quality and drift',
+    access: access.roles(['admin', 'ops', 'manager', 'analyst', 'exec'], { tokens: true }),
+    body: scoreRequestSchema,
+    response: scoreResponseSchema,
+    handler: (_req, _res, { body }) => scoreItems(body),
+  }),
+];
