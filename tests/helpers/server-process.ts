@@ -17,6 +17,7 @@ export async function startServerProcess(
   env: Record<string, string> = {},
 ): Promise<ServerProcess> {
   const port = await freePort();
+  const smtpPort = await freePort();
   let log = '';
   const child = spawn(
     process.execPath,
@@ -28,9 +29,11 @@ export async function startServerProcess(
         NODE_ENV: 'test',
         DATABASE_URL: databaseUrl,
         PORT: String(port),
+        PUBLIC_URL: `http://127.0.0.1:${port}`,
         SESSION_SECRET: 'e2e-secret-of-ballast',
         BALLAST_DEMO: 'true',
         LOG_LEVEL: 'warn',
+        BALLAST_SMTP_PORT: String(smtpPort),
         ...env,
       },
       stdio: ['ignore', 'pipe', 'pipe'],
@@ -39,16 +42,13 @@ export async function startServerProcess(
   child.stdout?.on('data', (d: Buffer) => (log += d.toString()));
   child.stderr?.on('data', (d: Buffer) => (log += d.toString()));
   const url = `http://127.0.0.1:${port}`;
-  const deadline = Date.now() + 60_000;
-  while (Date.now() < deadline) {
+  // Wait for our own process to say it listens: polling the port alone could reach another test's
+  // server that took the same free port while this one was still seeding.
+  const deadline = Date.now() + 180_000;
+  while (!log.includes(`Ballast is running at http://127.0.0.1:${port}`)) {
     if (child.exitCode !== null) throw new Error(`Ballast exited at start:\n${log}`);
-    try {
-      const res = await fetch(`${url}/api/health`);
-      if (res.ok) break;
-    } catch {
-      // not listening yet
-    }
-    await sleep(200);
+    if (Date.now() > deadline) throw new Error(`Ballast did not start in time:\n${log}`);
+    await sleep(100);
   }
   return {
     url,
