@@ -1,11 +1,38 @@
+import { gzipSync } from 'node:zlib';
 import tailwindcss from '@tailwindcss/vite';
 import react from '@vitejs/plugin-react';
+import type { Plugin } from 'vite';
 import { defineConfig } from 'vitest/config';
+
+/** Prints the JavaScript a first visit downloads (the entry chunk and its static imports), gzipped. */
+function initialJsReport(): Plugin {
+  return {
+    name: 'ballast-initial-js',
+    apply: 'build',
+    generateBundle(_options, bundle) {
+      const chunks = new Map(
+        Object.values(bundle).flatMap((c) => (c.type === 'chunk' ? [[c.fileName, c] as const] : [])),
+      );
+      const initial = new Set<string>();
+      const visit = (name: string) => {
+        if (initial.has(name)) return;
+        initial.add(name);
+        for (const imported of chunks.get(name)?.imports ?? []) visit(imported);
+      };
+      for (const chunk of chunks.values()) if (chunk.isEntry) visit(chunk.fileName);
+      const gzipped = [...initial].reduce((sum, name) => sum + gzipSync(chunks.get(name)!.code).length, 0);
+      const lazy = chunks.size - initial.size;
+      console.log(
+        `\nBallast initial JS: ${(gzipped / 1024).toFixed(1)} kB gzipped (${initial.size} chunks; ${lazy} lazy chunks load per screen)`,
+      );
+    },
+  };
+}
 
 const apiPort = Number(process.env.BALLAST_API_PORT ?? 4600);
 
 export default defineConfig({
-  plugins: [react(), tailwindcss()],
+  plugins: [react(), tailwindcss(), initialJsReport()],
   build: {
     outDir: 'dist/client',
     emptyOutDir: true,

@@ -6,6 +6,7 @@ import { categoryRoutes } from './categories/categories.routes';
 import { healthRoutes } from './health/health.routes';
 import { openapiRoutes } from './openapi/openapi.routes';
 import { scoreRoutes } from './score/score.routes';
+import { standingsRoutes } from './standings/standings.routes';
 import { userRoutes } from './users/users.routes';
 
 /** Every API route of Ballast. The role-matrix test and the OpenAPI document both read this list. */
@@ -16,6 +17,7 @@ export const apiRoutes: RouteDef[] = [
   ...userRoutes,
   ...openapiRoutes,
   ...scoreRoutes,
+  ...standingsRoutes,
 ];
 
 export function buildApiRouter(routes: RouteDef[]): Router {

@@ -6,6 +6,7 @@ export type NavItem = { to: string; label: string; roles: readonly RoleCode[] | 
 export const navItems: NavItem[] = [
   { to: '/', label: 'Overview', roles: ['admin', 'ops', 'analyst', 'exec'] },
   { to: '/', label: 'My categories', roles: ['manager'] },
+  { to: '/calibrate', label: 'Calibration', roles: ['analyst', 'manager', 'admin'] },
   { to: '/admin/people', label: 'People & ownership', roles: ['admin'] },
   { to: '/admin/audit', label: 'Audit log', roles: ['admin'] },
 ];

@@ -27,6 +27,9 @@ export const router = createBrowserRouter([
     children: [
       { index: true, lazy: () => import('./routes/portfolio/overview') },
       { path: 'categories/:slug', lazy: () => import('./routes/portfolio/category') },
+      { path: 'categories/:slug/items/:sku', lazy: () => import('./routes/portfolio/item') },
+      { path: 'categories/:slug/calibrate', lazy: () => import('./routes/calibration/calibrate') },
+      { path: 'calibrate', lazy: () => import('./routes/calibration/choose') },
       { path: 'admin/people', lazy: () => import('./routes/admin/people') },
       { path: 'admin/audit', lazy: () => import('./routes/admin/audit') },
       { path: '*', lazy: () => import('./routes/misc/not-found') },

@@ -13,6 +13,32 @@ export const queryKeys = {
     all: ['users'] as const,
     list: () => ['users', 'list'] as const,
   },
+  portfolio: {
+    all: ['portfolio'] as const,
+    list: () => ['portfolio', 'list'] as const,
+  },
+  standings: {
+    all: ['standings'] as const,
+    weeks: (slug: string) => ['standings', 'weeks', { slug }] as const,
+    page: (slug: string, query: Record<string, string | number | undefined>) =>
+      ['standings', 'page', { slug, ...query }] as const,
+    drift: (slug: string, week?: string) => ['standings', 'drift', { slug, week }] as const,
+    freshness: (slug: string, week?: string) => ['standings', 'freshness', { slug, week }] as const,
+    item: (slug: string, sku: string, week?: string) => ['standings', 'item', { slug, sku, week }] as const,
+  },
+  whatIf: {
+    all: ['what-if'] as const,
+    evidence: (slug: string, week?: string, halfLifeDays?: number) =>
+      ['what-if', 'evidence', { slug, week, halfLifeDays }] as const,
+  },
+  categorySettings: {
+    all: ['category-settings'] as const,
+    detail: (slug: string) => ['category-settings', 'detail', { slug }] as const,
+  },
+  calibrationNotes: {
+    all: ['calibration-notes'] as const,
+    list: (slug: string) => ['calibration-notes', 'list', { slug }] as const,
+  },
   audit: {
     all: ['audit'] as const,
     list: (filter: { page: number; action?: string; actor?: string }) => ['audit', 'list', filter] as const,

@@ -23,6 +23,18 @@ const expected: Record<string, Allowed> = {
   'POST /api/admin/users': ['admin'],
   'PATCH /api/admin/users/:id': ['admin'],
   'GET /api/admin/audit': ['admin'],
+  'GET /api/portfolio': 'signed-in',
+  'GET /api/categories/:slug/weeks': 'signed-in',
+  'GET /api/categories/:slug/standings': 'signed-in',
+  'GET /api/categories/:slug/standings.csv': 'signed-in',
+  'GET /api/categories/:slug/drift': 'signed-in',
+  'GET /api/categories/:slug/freshness': 'signed-in',
+  'GET /api/categories/:slug/items/:sku': 'signed-in',
+  'GET /api/categories/:slug/what-if': 'signed-in',
+  'GET /api/categories/:slug/settings': 'signed-in',
+  'PUT /api/categories/:slug/settings': ['manager', 'admin'],
+  'GET /api/categories/:slug/calibration-notes': 'signed-in',
+  'POST /api/categories/:slug/calibration-notes': ['analyst', 'manager', 'admin'],
   'POST /api/score': 'signed-in',
 };
 

@@ -2,6 +2,7 @@ import type { Sequelize } from 'sequelize';
 import { AggregateObservation } from './aggregate-observation.model';
 import { ApiToken } from './api-token.model';
 import { AuditEvent } from './audit-event.model';
+import { CalibrationNote } from './calibration-note.model';
 import { CategoryOwner } from './category-owner.model';
 import { Category } from './category.model';
 import { ImportBatch } from './import-batch.model';
@@ -31,6 +32,7 @@ export function initModels(sequelize: Sequelize): void {
     ApiToken,
     Snapshot,
     SnapshotRow,
+    CalibrationNote,
   ];
   for (const model of models) model.initModel(sequelize);
 
@@ -66,6 +68,7 @@ export {
   AggregateObservation,
   ApiToken,
   AuditEvent,
+  CalibrationNote,
   Category,
   CategoryOwner,
   ImportBatch,

@@ -76,7 +76,7 @@ describe('POST /api/score', () => {
 
 describe('npm run score', () => {
   it('prints the same JSON as the API for the same request', async () => {
-    const body = JSON.parse(readFileSync(sample, 'utf8')) as unknown;
+    const body = JSON.parse(readFileSync(sample, 'utf8')) as object;
     const api = await analyst.post('/api/score').set('x-csrf-token', analyst.csrf).send(body).expect(200);
     const { stdout } = await cli(sample);
     expect(JSON.parse(stdout)).toEqual(api.body);

@@ -1,23 +1,30 @@
-import { Link } from 'react-router-dom';
+import { RouteError } from '../../../components/errors/route-error';
+import { WidgetBoundary } from '../../../components/errors/widget-boundary';
 import { Caution } from '../../../components/ui/caution';
 import { PageHeader } from '../../../components/ui/page-header';
 import { EmptyState, ErrorPanel, Loading } from '../../../components/ui/status';
 import { meQueryOptions, useMe } from '../../../features/auth/api/get-me';
-import { categoriesQueryOptions, useCategories } from '../../../features/categories/api/get-categories';
+import { portfolioQueryOptions, usePortfolio } from '../../../features/portfolio/api/get-portfolio';
+import { PortfolioCard } from '../../../features/portfolio/components/portfolio-card';
 import { queryClient } from '../../../lib/query-client';
 
 export async function loader() {
   await Promise.all([
     queryClient.ensureQueryData(meQueryOptions()),
-    queryClient.ensureQueryData(categoriesQueryOptions()),
+    queryClient.ensureQueryData(portfolioQueryOptions()),
   ]);
   return null;
 }
 
 export function Component() {
   const { data: me } = useMe();
-  const categories = useCategories();
+  const portfolio = usePortfolio();
   const isManager = me?.role === 'manager';
+  const latestWeek = portfolio.data
+    ?.map((e) => e.latest?.isoWeek)
+    .filter(Boolean)
+    .sort()
+    .at(-1);
 
   return (
     <>
@@ -25,42 +32,35 @@ export function Component() {
         title={isManager ? 'My categories' : 'Overview'}
         lead={
           isManager
-            ? 'The categories you own. Their weekly digests and scoring settings are yours to read and tune.'
-            : 'Every category in Ballast. Open one to see how its naive and smoothed orderings compare.'
+            ? 'The categories you own, as of their latest weekly snapshot. Open one to see its standings and tune its scoring.'
+            : `Every category as of its latest weekly snapshot${latestWeek ? ` (${latestWeek})` : ''}. Lines show the last twelve weeks.`
         }
       />
-      {categories.isPending ? <Loading /> : null}
-      {categories.isError ? (
-        <ErrorPanel error={categories.error} onRetry={() => void categories.refetch()} />
+      {portfolio.isPending ? <Loading label="Loading the portfolio…" /> : null}
+      {portfolio.isError ? (
+        <ErrorPanel error={portfolio.error} onRetry={() => void portfolio.refetch()} />
       ) : null}
-      {categories.data && categories.data.length === 0 ? (
+      {portfolio.data && portfolio.data.length === 0 ? (
         <EmptyState title={isManager ? 'You do not own a category yet' : 'No categories yet'}>
           {isManager
             ? 'An administrator assigns categories to their managers.'
             : 'Categories appear here once data has been imported.'}
         </EmptyState>
       ) : null}
-      {categories.data && categories.data.length > 0 ? (
-        <ul className="grid gap-4 sm:grid-cols-2 xl:grid-cols-3" aria-label="Categories">
-          {categories.data.map((category) => (
-            <li key={category.id}>
-              <Link
-                to={`/categories/${category.slug}`}
-                className="block h-full rounded-lg border border-ink-100 bg-white p-5 shadow-sm transition hover:border-brass-500 hover:shadow"
-              >
-                <h2 className="text-lg font-bold text-ink-900">{category.name}</h2>
-                <p className="mt-1 text-sm text-ink-500">{category.description}</p>
-                <p className="mt-3 text-xs font-semibold uppercase tracking-wide text-ink-300">
-                  {category.owners.length > 0
-                    ? `Managed by ${category.owners.map((o) => o.name).join(', ')}`
-                    : 'No manager assigned'}
-                </p>
-              </Link>
-            </li>
-          ))}
-        </ul>
+      {portfolio.data && portfolio.data.length > 0 ? (
+        <WidgetBoundary label="portfolio">
+          <ul className="grid gap-4 md:grid-cols-2 xl:grid-cols-3" aria-label="Categories">
+            {portfolio.data.map((entry) => (
+              <li key={entry.slug} className="relative">
+                <PortfolioCard entry={entry} />
+              </li>
+            ))}
+          </ul>
+        </WidgetBoundary>
       ) : null}
       <Caution />
     </>
   );
 }
+
+export const ErrorBoundary = RouteError;

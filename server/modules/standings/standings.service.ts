@@ -1,0 +1,592 @@
+import { QueryTypes } from 'sequelize';
+import type { ResolvedParameters } from '../../../shared/scoring';
+import { wilsonLowerBound } from '../../../shared/scoring';
+import type {
+  DriftChart,
+  Freshness,
+  ItemDetail,
+  PortfolioEntry,
+  Standings,
+  StandingsQuery,
+  StandingsRow,
+  StandingsSort,
+  WeekSummary,
+} from '../../../shared/schemas/standings.schema';
+import { Category } from '../../db/models';
+import type { SnapshotRowDetails } from '../../db/models/snapshot-row.model';
+import { db } from '../../db/sequelize';
+import type { Actor } from '../../lib/actor';
+import { AppError } from '../../lib/app-error';
+import type { CategoryRef } from '../categories/categories.service';
+import { toCsv, type CsvColumn } from '../imports/csv-safe';
+
+/** How many weeks of figures the portfolio's trend lines show. */
+export const portfolioTrendWeeks = 12;
+
+type SnapshotFigureRow = {
+  id: number;
+  category_id: number;
+  iso_week: string;
+  cutoff: Date;
+  taken_at: Date;
+  item_count: number;
+  review_count: number;
+  spearman_rho: number | null;
+  kendall_tau_b: number | null;
+  mean_abs_drift: number;
+  stale_count: number;
+  thin_count: number;
+  cluster_count: number;
+};
+
+const figureColumns = `s.id, s.category_id, s.iso_week, s.cutoff, s.taken_at, s.item_count, s.review_count,
+  s.spearman_rho, s.kendall_tau_b, s.mean_abs_drift, s.stale_count, s.thin_count, s.cluster_count`;
+
+const numOrNull = (v: unknown): number | null => (v === null || v === undefined ? null : Number(v));
+
+function weekSummary(r: SnapshotFigureRow): WeekSummary {
+  const items = Number(r.item_count);
+  return {
+    isoWeek: r.iso_week,
+    cutoff: new Date(r.cutoff).toISOString(),
+    takenAt: new Date(r.taken_at).toISOString(),
+    itemCount: items,
+    reviewCount: Number(r.review_count),
+    spearmanRho: numOrNull(r.spearman_rho),
+    kendallTauB: numOrNull(r.kendall_tau_b),
+    meanAbsDrift: Number(r.mean_abs_drift),
+    staleShare: items > 0 ? Number(r.stale_count) / items : 0,
+    thinShare: items > 0 ? Number(r.thin_count) / items : 0,
+    clusterCount: Number(r.cluster_count),
+  };
+}
+
+function parseDetails(raw: unknown): SnapshotRowDetails {
+  return (typeof raw === 'string' ? JSON.parse(raw) : raw) as SnapshotRowDetails;
+}
+
+function parseParams(raw: unknown): ResolvedParameters {
+  return (typeof raw === 'string' ? JSON.parse(raw) : raw) as ResolvedParameters;
+}
+
+/** Every category the caller may see, with its latest week's figures and the weeks before it. */
+export async function getPortfolio(actor: Actor): Promise<PortfolioEntry[]> {
+  const categories = await Category.findAll({
+    where: actor.categoryIds ? { id: actor.categoryIds } : {},
+    attributes: ['id', 'slug', 'name', 'description'],
+    order: [['name', 'ASC']],
+  });
+  if (categories.length === 0) return [];
+  const rows = await db().query<SnapshotFigureRow>(
+    `SELECT * FROM (
+       SELECT ${figureColumns}, ROW_NUMBER() OVER (PARTITION BY s.category_id ORDER BY s.iso_week DESC) AS place
+       FROM snapshots s WHERE s.category_id IN (:ids)
+     ) s WHERE s.place <= :weeks ORDER BY s.category_id, s.iso_week`,
+    {
+      replacements: { ids: categories.map((c) => c.id), weeks: portfolioTrendWeeks },
+      type: QueryTypes.SELECT,
+    },
+  );
+  const byCategory = new Map<number, WeekSummary[]>();
+  for (const r of rows) {
+    const list = byCategory.get(Number(r.category_id)) ?? [];
+    list.push(weekSummary(r));
+    byCategory.set(Number(r.category_id), list);
+  }
+  return categories.map((c) => {
+    const trend = byCategory.get(c.id) ?? [];
+    return {
+      slug: c.slug,
+      name: c.name,
+      description: c.description,
+      latest: trend.at(-1) ?? null,
+      trend,
+    };
+  });
+}
+
+/** The snapshot weeks of a category, newest first. */
+export async function listWeeks(category: CategoryRef): Promise<WeekSummary[]> {
+  const rows = await db().query<SnapshotFigureRow>(
+    `SELECT ${figureColumns} FROM snapshots s WHERE s.category_id = :categoryId ORDER BY s.iso_week DESC`,
+    { replacements: { categoryId: category.id }, type: QueryTypes.SELECT },
+  );
+  return rows.map(weekSummary);
+}
+
+export type WeekSnapshot = { id: number; summary: WeekSummary; cutoff: Date; params: ResolvedParameters };
+
+/** The snapshot of the asked week, or the latest one; 404 when the category has none. */
+export async function findWeek(category: CategoryRef, week?: string): Promise<WeekSnapshot> {
+  const [row] = await db().query<SnapshotFigureRow & { params: unknown }>(
+    `SELECT ${figureColumns}, s.params FROM snapshots s WHERE s.category_id = :categoryId
+     ${week ? 'AND s.iso_week = :week' : ''} ORDER BY s.iso_week DESC LIMIT 1`,
+    { replacements: { categoryId: category.id, week: week ?? null }, type: QueryTypes.SELECT },
+  );
+  if (!row) {
+    throw week
+      ? AppError.notFound(`The snapshot of ${week} for ${category.name}`)
+      : new AppError('not_found', `${category.name} has no weekly snapshot yet.`, 404);
+  }
+  return {
+    id: Number(row.id),
+    summary: weekSummary(row),
+    cutoff: new Date(row.cutoff),
+    params: parseParams(row.params),
+  };
+}
+
+const sortSql: Record<StandingsSort, string> = {
+  smoothedRank: 'sr.smoothed_rank',
+  naiveRank: 'sr.naive_rank',
+  drift: 'sr.drift',
+  absDrift: 'ABS(sr.drift)',
+  n: 'sr.n',
+  rawMean: 'sr.raw_mean',
+  smoothed: 'sr.smoothed',
+  lowerBound: 'sr.lower_bound',
+  newestAgeDays: 'sr.newest_age_days',
+  smoothedMovement: 'sr.smoothed_movement',
+  sku: 'i.sku',
+  title: 'i.title',
+};
+
+const moverSql =
+  '(ABS(COALESCE(sr.smoothed_movement, 0)) >= :moverThreshold OR ABS(COALESCE(sr.naive_movement, 0)) >= :moverThreshold)';
+
+function escapeLike(text: string): string {
+  return text.replace(/[\\%_]/g, '\\$&');
+}
+
+function standingsWhere(query: Omit<StandingsQuery, 'page' | 'pageSize' | 'sort' | 'dir'>) {
+  const clauses = ['sr.snapshot_id = :snapshotId'];
+  const replacements: Record<string, unknown> = {};
+  const flags = new Set(query.flags ? query.flags.split(',') : []);
+  if (flags.has('stale')) clauses.push('sr.stale = 1');
+  if (flags.has('thin')) clauses.push('sr.thin = 1');
+  if (flags.has('cluster')) clauses.push('sr.negative_cluster = 1');
+  if (flags.has('mover')) clauses.push(moverSql);
+  if (query.q) {
+    clauses.push('(i.sku LIKE :q OR i.title LIKE :q)');
+    replacements.q = `%${escapeLike(query.q)}%`;
+  }
+  if (query.driftMin !== undefined) {
+    clauses.push('sr.drift >= :driftMin');
+    replacements.driftMin = query.driftMin;
+  }
+  if (query.driftMax !== undefined) {
+    clauses.push('sr.drift <= :driftMax');
+    replacements.driftMax = query.driftMax;
+  }
+  return { where: clauses.join(' AND '), replacements };
+}
+
+type StandingsSqlRow = {
+  sku: string;
+  title: string;
+  n: number;
+  raw_mean: number | null;
+  smoothed: number;
+  lower_bound: number;
+  naive_rank: number;
+  smoothed_rank: number;
+  drift: number;
+  naive_movement: number | null;
+  smoothed_movement: number | null;
+  newest_age_days: number | null;
+  recent_share: number | null;
+  one_star_share: number | null;
+  stale: number | null;
+  thin: number;
+  negative_cluster: number | null;
+  mover: number;
+  reviews_to_pass: number | null;
+  details: unknown;
+};
+
+const boolOrNull = (v: unknown): boolean | null =>
+  v === null || v === undefined ? null : Boolean(Number(v));
+
+function toStandingsRow(r: StandingsSqlRow): StandingsRow {
+  const details = parseDetails(r.details);
+  return {
+    sku: r.sku,
+    title: r.title,
+    n: Number(r.n),
+    rawMean: numOrNull(r.raw_mean),
+    smoothed: Number(r.smoothed),
+    lowerBound: Number(r.lower_bound),
+    naiveRank: Number(r.naive_rank),
+    smoothedRank: Number(r.smoothed_rank),
+    drift: Number(r.drift),
+    naiveMovement: numOrNull(r.naive_movement),
+    smoothedMovement: numOrNull(r.smoothed_movement),
+    newestAgeDays: numOrNull(r.newest_age_days),
+    recentShare: numOrNull(r.recent_share),
+    oneStarShare: numOrNull(r.one_star_share),
+    stale: boolOrNull(r.stale),
+    thin: Boolean(Number(r.thin)),
+    negativeCluster: boolOrNull(r.negative_cluster),
+    mover: Boolean(Number(r.mover)),
+    staleReason: details.staleReason,
+    clusterReason: details.clusterReason,
+    reviewsToPass: numOrNull(r.reviews_to_pass),
+  };
+}
+
+async function selectStandings(
+  snapshot: WeekSnapshot,
+  query: StandingsQuery,
+  limit: number | null,
+): Promise<{ rows: StandingsRow[]; total: number }> {
+  const { where, replacements } = standingsWhere(query);
+  const base = {
+    ...replacements,
+    snapshotId: snapshot.id,
+    moverThreshold: snapshot.params.moverThreshold,
+  };
+  const [count] = await db().query<{ total: number }>(
+    `SELECT COUNT(*) AS total FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id WHERE ${where}`,
+    { replacements: base, type: QueryTypes.SELECT },
+  );
+  const dir = query.dir === 'desc' ? 'DESC' : 'ASC';
+  const rows = await db().query<StandingsSqlRow>(
+    `SELECT i.sku, i.title, sr.n, sr.raw_mean, sr.smoothed, sr.lower_bound, sr.naive_rank, sr.smoothed_rank, sr.drift,
+       sr.naive_movement, sr.smoothed_movement, sr.newest_age_days, sr.recent_share, sr.one_star_share,
+       sr.stale, sr.thin, sr.negative_cluster, ${moverSql} AS mover, sr.reviews_to_pass, sr.details
+     FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
+     WHERE ${where}
+     ORDER BY ${sortSql[query.sort]} ${dir}, sr.smoothed_rank ASC, i.sku ASC
+     ${limit === null ? '' : 'LIMIT :limit OFFSET :offset'}`,
+    {
+      replacements: { ...base, limit, offset: limit === null ? 0 : (query.page - 1) * limit },
+      type: QueryTypes.SELECT,
+    },
+  );
+  return { rows: rows.map(toStandingsRow), total: Number(count?.total ?? 0) };
+}
+
+/** One page of a week's standings, sorted and filtered in SQL on whitelisted columns. */
+export async function getStandings(category: CategoryRef, query: StandingsQuery): Promise<Standings> {
+  const snapshot = await findWeek(category, query.week);
+  const { rows, total } = await selectStandings(snapshot, query, query.pageSize);
+  return {
+    week: snapshot.summary,
+    m: snapshot.params.m,
+    C: snapshot.params.C,
+    thinThreshold: snapshot.params.thinEvidenceThreshold,
+    staleAfterDays: snapshot.params.staleAfterDays,
+    moverThreshold: snapshot.params.moverThreshold,
+    total,
+    page: query.page,
+    pageSize: query.pageSize,
+    rows,
+  };
+}
+
+const flagList = (r: StandingsRow) =>
+  [r.stale ? 'stale' : '', r.thin ? 'thin' : '', r.negativeCluster ? 'cluster' : '', r.mover ? 'mover' : '']
+    .filter(Boolean)
+    .join(' ');
+
+const csvColumns: CsvColumn<StandingsRow>[] = [
+  { header: 'smoothed_rank', value: 'smoothedRank' },
+  { header: 'naive_rank', value: 'naiveRank' },
+  { header: 'drift', value: 'drift' },
+  { header: 'sku', value: 'sku' },
+  { header: 'title', value: 'title' },
+  { header: 'reviews', value: 'n' },
+  { header: 'raw_mean', value: (r) => (r.rawMean === null ? '' : r.rawMean.toFixed(4)) },
+  { header: 'smoothed', value: (r) => r.smoothed.toFixed(4) },
+  { header: 'lower_bound', value: (r) => r.lowerBound.toFixed(4) },
+  {
+    header: 'newest_review_age_days',
+    value: (r) => (r.newestAgeDays === null ? '' : Math.floor(r.newestAgeDays)),
+  },
+  { header: 'movement_smoothed', value: 'smoothedMovement' },
+  { header: 'flags', value: flagList },
+  { header: 'stale_reason', value: 'staleReason' },
+  { header: 'cluster_reason', value: 'clusterReason' },
+];
+
+/** The whole filtered and sorted view (every page) as CSV, safe to open in a spreadsheet. */
+export async function exportStandingsCsv(
+  category: CategoryRef,
+  query: StandingsQuery,
+): Promise<{ fileName: string; csv: string }> {
+  const snapshot = await findWeek(category, query.week);
+  const { rows } = await selectStandings(snapshot, query, null);
+  const filtered = query.flags || query.q || query.driftMin !== undefined || query.driftMax !== undefined;
+  const fileName = `ballast-${category.slug}-${snapshot.summary.isoWeek}-standings${filtered ? '-filtered' : ''}.csv`;
+  return { fileName, csv: toCsv(rows, csvColumns, { bom: true }) };
+}
+
+/** Naive against smoothed rank for every item of the week, as parallel arrays. */
+export async function getDriftChart(category: CategoryRef, week?: string): Promise<DriftChart> {
+  const snapshot = await findWeek(category, week);
+  const rows = await db().query<{ sku: string; naive_rank: number; smoothed_rank: number; n: number }>(
+    `SELECT i.sku, sr.naive_rank, sr.smoothed_rank, sr.n FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
+     WHERE sr.snapshot_id = :snapshotId ORDER BY sr.smoothed_rank, i.sku`,
+    { replacements: { snapshotId: snapshot.id }, type: QueryTypes.SELECT },
+  );
+  return {
+    isoWeek: snapshot.summary.isoWeek,
+    skus: rows.map((r) => r.sku),
+    naive: rows.map((r) => Number(r.naive_rank)),
+    smoothed: rows.map((r) => Number(r.smoothed_rank)),
+    n: rows.map((r) => Number(r.n)),
+  };
+}
+
+const ageBuckets: { label: string; from: number; to: number | null }[] = [
+  { label: 'Under 30 days', from: 0, to: 30 },
+  { label: '30–90 days', from: 30, to: 90 },
+  { label: '90–180 days', from: 90, to: 180 },
+  { label: '180–365 days', from: 180, to: 365 },
+  { label: '1–2 years', from: 365, to: 730 },
+  { label: 'Over 2 years', from: 730, to: null },
+];
+
+/** How old each item's newest review is, in buckets, and the stale items oldest first. */
+export async function getFreshness(category: CategoryRef, week?: string, limit = 100): Promise<Freshness> {
+  const snapshot = await findWeek(category, week);
+  const replacements: Record<string, unknown> = { snapshotId: snapshot.id, limit };
+  const sums = ageBuckets
+    .map((b, k) => {
+      replacements[`f${k}`] = b.from;
+      if (b.to !== null) replacements[`t${k}`] = b.to;
+      return `SUM(sr.newest_age_days >= :f${k}${b.to === null ? '' : ` AND sr.newest_age_days < :t${k}`}) AS b${k}`;
+    })
+    .join(', ');
+  const [counts] = await db().query<Record<string, number | null>>(
+    `SELECT ${sums}, SUM(sr.newest_age_days IS NULL) AS unknown_age, SUM(sr.stale = 1) AS stale_total
+     FROM snapshot_rows sr WHERE sr.snapshot_id = :snapshotId`,
+    { replacements, type: QueryTypes.SELECT },
+  );
+  const stale = await db().query<{
+    sku: string;
+    title: string;
+    n: number;
+    smoothed_rank: number;
+    newest_age_days: number | null;
+    details: unknown;
+  }>(
+    `SELECT i.sku, i.title, sr.n, sr.smoothed_rank, sr.newest_age_days, sr.details
+     FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
+     WHERE sr.snapshot_id = :snapshotId AND sr.stale = 1
+     ORDER BY sr.newest_age_days DESC, i.sku LIMIT :limit`,
+    { replacements, type: QueryTypes.SELECT },
+  );
+  return {
+    isoWeek: snapshot.summary.isoWeek,
+    staleAfterDays: snapshot.params.staleAfterDays,
+    buckets: ageBuckets.map((b, k) => ({ ...b, count: Number(counts?.[`b${k}`] ?? 0) })),
+    unknownAge: Number(counts?.unknown_age ?? 0),
+    staleTotal: Number(counts?.stale_total ?? 0),
+    stale: stale.map((r) => ({
+      sku: r.sku,
+      title: r.title,
+      n: Number(r.n),
+      smoothedRank: Number(r.smoothed_rank),
+      newestAgeDays: numOrNull(r.newest_age_days),
+      newestAt: parseDetails(r.details).newestAt,
+    })),
+  };
+}
+
+type TimelineSqlRow = {
+  snapshot_id: number;
+  iso_week: string;
+  cutoff: Date;
+  item_count: number;
+  params: unknown;
+  n: number | null;
+  raw_mean: number | null;
+  smoothed: number | null;
+  lower_bound: number | null;
+  naive_rank: number | null;
+  smoothed_rank: number | null;
+  drift: number | null;
+  naive_movement: number | null;
+  smoothed_movement: number | null;
+  newest_age_days: number | null;
+  median_age_days: number | null;
+  recent_share: number | null;
+  decayed_mean: number | null;
+  effective_count: number | null;
+  helpful_mean: number | null;
+  one_star_share: number | null;
+  stale: number | null;
+  thin: number | null;
+  negative_cluster: number | null;
+  reviews_to_pass: number | null;
+  details: unknown;
+};
+
+function flagsOf(row: TimelineSqlRow, details: SnapshotRowDetails, params: ResolvedParameters) {
+  const n = Number(row.n);
+  const movement = Math.max(
+    Math.abs(Number(row.smoothed_movement ?? 0)),
+    Math.abs(Number(row.naive_movement ?? 0)),
+  );
+  const stale = Boolean(Number(row.stale));
+  const thin = Boolean(Number(row.thin));
+  const cluster = Boolean(Number(row.negative_cluster));
+  const phrases = details.recurringPhrases.map((p) => `“${p.phrase}” ×${p.count}`).join(', ');
+  return [
+    {
+      flag: 'stale' as const,
+      on: stale,
+      reason: stale
+        ? `${details.staleReason ?? 'Newest review is old'}; the category treats ${params.staleAfterDays} days as stale.`
+        : (details.staleReason ?? `Newest review is within ${params.staleAfterDays} days.`),
+    },
+    {
+      flag: 'thin' as const,
+      on: thin,
+      reason: thin
+        ? `${n} reviews, below the thin-evidence threshold of ${params.thinEvidenceThreshold.toFixed(1)}.`
+        : `${n} reviews, at or above the thin-evidence threshold of ${params.thinEvidenceThreshold.toFixed(1)}.`,
+    },
+    {
+      flag: 'cluster' as const,
+      on: cluster,
+      reason: cluster
+        ? `${details.clusterReason ?? 'More one-star reviews than the item’s baseline'}${phrases ? `; recurring: ${phrases}` : ''}.`
+        : (details.clusterReason ?? 'No unusual run of one-star reviews.'),
+    },
+    {
+      flag: 'mover' as const,
+      on: movement >= params.moverThreshold,
+      reason:
+        row.smoothed_movement === null
+          ? 'No earlier week to compare with.'
+          : `Moved ${Number(row.smoothed_movement) >= 0 ? 'up' : 'down'} ${Math.abs(Number(row.smoothed_movement))} places smoothed and ${Math.abs(Number(row.naive_movement))} naive since the week before (mover threshold ${params.moverThreshold}).`,
+    },
+  ];
+}
+
+/** Everything the item screen shows: rank timeline over all weeks and the chosen week's evidence. */
+export async function getItemDetail(category: CategoryRef, sku: string, week?: string): Promise<ItemDetail> {
+  const [item] = await db().query<{ id: number; sku: string; title: string }>(
+    'SELECT id, sku, title FROM items WHERE category_id = :categoryId AND sku = :sku',
+    { replacements: { categoryId: category.id, sku }, type: QueryTypes.SELECT },
+  );
+  if (!item) throw AppError.notFound(`The item ${sku}`);
+  const rows = await db().query<TimelineSqlRow>(
+    `SELECT s.id AS snapshot_id, s.iso_week, s.cutoff, s.item_count, s.params, sr.n, sr.raw_mean, sr.smoothed, sr.lower_bound,
+       sr.naive_rank, sr.smoothed_rank, sr.drift, sr.naive_movement, sr.smoothed_movement, sr.newest_age_days,
+       sr.median_age_days, sr.recent_share, sr.decayed_mean, sr.effective_count, sr.helpful_mean, sr.one_star_share,
+       sr.stale, sr.thin, sr.negative_cluster, sr.reviews_to_pass, sr.details
+     FROM snapshots s LEFT JOIN snapshot_rows sr ON sr.snapshot_id = s.id AND sr.item_id = :itemId
+     WHERE s.category_id = :categoryId ORDER BY s.iso_week`,
+    { replacements: { itemId: item.id, categoryId: category.id }, type: QueryTypes.SELECT },
+  );
+  const timeline = rows.map((r) => ({
+    isoWeek: r.iso_week,
+    cutoff: new Date(r.cutoff).toISOString(),
+    itemCount: Number(r.item_count),
+    naiveRank: numOrNull(r.naive_rank),
+    smoothedRank: numOrNull(r.smoothed_rank),
+    n: numOrNull(r.n),
+    rawMean: numOrNull(r.raw_mean),
+    smoothed: numOrNull(r.smoothed),
+    lowerBound: numOrNull(r.lower_bound),
+    decayedMean: numOrNull(r.decayed_mean),
+    helpfulMean: numOrNull(r.helpful_mean),
+  }));
+  const present = rows.filter((r) => r.n !== null);
+  const chosen = week ? present.find((r) => r.iso_week === week) : present.at(-1);
+  if (week && !chosen) throw AppError.notFound(`${sku} in the snapshot of ${week}`);
+
+  let current: ItemDetail['current'] = null;
+  let helpfulReviews: ItemDetail['helpfulReviews'] = [];
+  if (chosen) {
+    const params = parseParams(chosen.params);
+    const details = parseDetails(chosen.details);
+    const n = Number(chosen.n);
+    const rawMean = numOrNull(chosen.raw_mean);
+    const sumStars = details.histogram
+      ? details.histogram.reduce((s, c, k) => s + c * (k + 1), 0)
+      : n * (rawMean ?? 0);
+    let above: NonNullable<ItemDetail['current']>['above'] = null;
+    if (details.aboveSku !== null && details.aboveScore !== null) {
+      const [aboveItem] = await db().query<{ title: string }>(
+        'SELECT title FROM items WHERE category_id = :categoryId AND sku = :sku',
+        { replacements: { categoryId: category.id, sku: details.aboveSku }, type: QueryTypes.SELECT },
+      );
+      above = { sku: details.aboveSku, title: aboveItem?.title ?? null, smoothed: details.aboveScore };
+    }
+    current = {
+      n,
+      sumStars,
+      rawMean,
+      smoothed: Number(chosen.smoothed),
+      lowerBound: Number(chosen.lower_bound),
+      naiveRank: Number(chosen.naive_rank),
+      smoothedRank: Number(chosen.smoothed_rank),
+      drift: Number(chosen.drift),
+      itemCount: Number(chosen.item_count),
+      histogram: details.histogram,
+      newestAt: details.newestAt,
+      newestAgeDays: numOrNull(chosen.newest_age_days),
+      medianAgeDays: numOrNull(chosen.median_age_days),
+      recentShare: numOrNull(chosen.recent_share),
+      decayedMean: numOrNull(chosen.decayed_mean),
+      effectiveCount: numOrNull(chosen.effective_count),
+      helpfulMean: numOrNull(chosen.helpful_mean),
+      oneStarShare: numOrNull(chosen.one_star_share),
+      flags: flagsOf(chosen, details, params),
+      recurringPhrases: details.recurringPhrases,
+      m: params.m,
+      C: params.C,
+      halfLifeDays: params.halfLifeDays,
+      whatItTakesStars: params.whatItTakesStars,
+      above,
+      reviewsToPass: numOrNull(chosen.reviews_to_pass),
+    };
+
+    // Review text and votes only: reviewer identifiers never leave the server (DESIGN §7).
+    const reviews = await db().query<{
+      stars: number;
+      reviewed_at: Date;
+      helpful_yes: number;
+      helpful_no: number;
+      verified: number | null;
+      body: string | null;
+    }>(
+      `SELECT stars, reviewed_at, helpful_yes, helpful_no, verified, body FROM reviews
+       WHERE item_id = :itemId AND reviewed_at <= :cutoff AND helpful_yes > 0`,
+      { replacements: { itemId: item.id, cutoff: new Date(chosen.cutoff) }, type: QueryTypes.SELECT },
+    );
+    helpfulReviews = reviews
+      .map((r) => ({
+        weight: wilsonLowerBound(
+          Number(r.helpful_yes),
+          Number(r.helpful_yes) + Number(r.helpful_no),
+          params.helpfulZ,
+        ),
+        at: new Date(r.reviewed_at),
+        r,
+      }))
+      .sort((a, b) => b.weight - a.weight || b.at.getTime() - a.at.getTime())
+      .slice(0, 3)
+      .map(({ r, at }) => ({
+        stars: Number(r.stars),
+        reviewedAt: at.toISOString(),
+        helpfulYes: Number(r.helpful_yes),
+        helpfulNo: Number(r.helpful_no),
+        verified: boolOrNull(r.verified),
+        body: r.body,
+      }));
+  }
+  return {
+    sku: item.sku,
+    title: item.title,
+    category: { slug: category.slug, name: category.name },
+    isoWeek: chosen?.iso_week ?? null,
+    timeline,
+    current,
+    helpfulReviews,
+  };
+}

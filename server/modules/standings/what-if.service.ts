@@ -1,0 +1,159 @@
+import { QueryTypes } from 'sequelize';
+import { resolveSettings, ScoringInputError, type ScoringSettings } from '../../../shared/scoring';
+import type {
+  CalibrationNote,
+  CalibrationNoteInput,
+  CategorySettings,
+  ScoringSettingsInput,
+  WhatIfEvidence,
+  WhatIfQuery,
+} from '../../../shared/schemas/standings.schema';
+import { CalibrationNote as CalibrationNoteModel, Category } from '../../db/models';
+import { db } from '../../db/sequelize';
+import type { Actor } from '../../lib/actor';
+import { AppError } from '../../lib/app-error';
+import { recordAudit } from '../audit/audit.service';
+import type { CategoryRef } from '../categories/categories.service';
+import { loadCategoryEvidence } from '../snapshots/snapshot-evidence';
+import { categorySettings } from '../snapshots/snapshots.service';
+import { findWeek } from './standings.service';
+
+async function storedSettings(
+  category: CategoryRef,
+): Promise<{ row: Category; stored: Record<string, unknown> }> {
+  const row = await Category.findByPk(category.id);
+  if (!row) throw AppError.notFound('The category');
+  return { row, stored: { ...(row.settings ?? {}) } };
+}
+
+/**
+ * The week's evidence summaries with the category's settings and the snapshot's resolved parameters, so the
+ * browser can re-score them with the same engine the snapshot job used. A changed half-life changes the
+ * decay sums, which only SQL can recompute: the browser asks again with it.
+ */
+export async function getWhatIfEvidence(category: CategoryRef, query: WhatIfQuery): Promise<WhatIfEvidence> {
+  const snapshot = await findWeek(category, query.week);
+  const { stored } = await storedSettings(category);
+  const settings: ScoringSettings = {
+    ...categorySettings(stored),
+    ...(query.halfLifeDays ? { halfLifeDays: query.halfLifeDays } : {}),
+  };
+  const evidence = await loadCategoryEvidence(category.id, snapshot.cutoff, settings);
+  const previous = await db().query<{ sku: string; naive_rank: number; smoothed_rank: number }>(
+    `SELECT i.sku, sr.naive_rank, sr.smoothed_rank FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
+     WHERE sr.snapshot_id = (SELECT id FROM snapshots WHERE category_id = :categoryId AND iso_week < :week
+                             ORDER BY iso_week DESC LIMIT 1)`,
+    {
+      replacements: { categoryId: category.id, week: snapshot.summary.isoWeek },
+      type: QueryTypes.SELECT,
+    },
+  );
+  return {
+    isoWeek: snapshot.summary.isoWeek,
+    asOf: snapshot.cutoff.toISOString(),
+    settings: settings as unknown as Record<string, unknown>,
+    resolved: snapshot.params as unknown as Record<string, unknown>,
+    items: evidence.items as unknown as Record<string, unknown>[],
+    previous:
+      previous.length === 0
+        ? null
+        : previous.map((p) => ({
+            sku: p.sku,
+            naiveRank: Number(p.naive_rank),
+            smoothedRank: Number(p.smoothed_rank),
+          })),
+  };
+}
+
+function canEditSettings(actor: Actor, categoryId: number): boolean {
+  if (actor.role === 'admin') return true;
+  return actor.role === 'manager' && (actor.categoryIds ?? []).includes(categoryId);
+}
+
+export async function getCategorySettings(category: CategoryRef, actor: Actor): Promise<CategorySettings> {
+  const { row, stored } = await storedSettings(category);
+  return {
+    slug: category.slug,
+    stored,
+    effective: categorySettings(stored) as unknown as Record<string, unknown>,
+    canEdit: canEditSettings(actor, category.id),
+    updatedAt: row.updatedAt ? row.updatedAt.toISOString() : null,
+  };
+}
+
+/**
+ * Saves a change to a category's scoring settings (fields sent replace the stored ones; the rest stay),
+ * refusing values the engine would reject, and records who changed what from what.
+ */
+export async function updateCategorySettings(
+  category: CategoryRef,
+  change: ScoringSettingsInput,
+  actor: Actor,
+  ip?: string,
+): Promise<CategorySettings> {
+  if (!canEditSettings(actor, category.id)) {
+    throw AppError.forbidden('Only the managers of this category and administrators can save its settings.');
+  }
+  const { row, stored: before } = await storedSettings(category);
+  const after: Record<string, unknown> = { ...before, ...change };
+  try {
+    resolveSettings(after);
+  } catch (err) {
+    if (err instanceof ScoringInputError) throw new AppError('bad_request', err.message, 400);
+    throw err;
+  }
+  row.settings = after;
+  row.changed('settings', true);
+  await row.save();
+  await recordAudit({
+    actor,
+    action: 'category.settings_updated',
+    targetType: 'category',
+    targetId: category.slug,
+    details: { before, after },
+    ip,
+  });
+  return getCategorySettings(category, actor);
+}
+
+function toNote(row: CalibrationNoteModel): CalibrationNote {
+  const result = row.result as Omit<CalibrationNoteInput, 'isoWeek' | 'note'>;
+  return {
+    ...result,
+    id: row.id,
+    isoWeek: row.isoWeek,
+    note: row.note,
+    createdAt: row.createdAt.toISOString(),
+    createdBy: row.createdByName,
+  };
+}
+
+export async function listCalibrationNotes(category: CategoryRef): Promise<CalibrationNote[]> {
+  const rows = await CalibrationNoteModel.findAll({
+    where: { categoryId: category.id },
+    order: [
+      ['createdAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
+    limit: 50,
+  });
+  return rows.map(toNote);
+}
+
+export async function saveCalibrationNote(
+  category: CategoryRef,
+  input: CalibrationNoteInput,
+  actor: Actor,
+): Promise<CalibrationNote> {
+  await findWeek(category, input.isoWeek);
+  const { isoWeek, note, ...result } = input;
+  const row = await CalibrationNoteModel.create({
+    categoryId: category.id,
+    isoWeek,
+    note,
+    result,
+    createdBy: actor.kind === 'user' ? actor.id : null,
+    createdByName: actor.name,
+  });
+  return toNote(row);
+}

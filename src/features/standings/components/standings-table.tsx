@@ -1,0 +1,230 @@
+import {
+  createColumnHelper,
+  flexRender,
+  getCoreRowModel,
+  useReactTable,
+  type SortingState,
+} from '@tanstack/react-table';
+import { Link } from 'react-router-dom';
+import type { StandingsRow, StandingsSort } from '../../../../shared/schemas/standings.schema';
+import { FlagBadge } from '../../../components/ui/flag-badge';
+import { fmt } from '../../../lib/format';
+
+const col = createColumnHelper<StandingsRow>();
+
+function Drift({ value }: { value: number }) {
+  const tone = value > 0 ? 'text-kelp-500' : value < 0 ? 'text-coral-500' : 'text-ink-500';
+  const arrow = value > 0 ? '▲' : value < 0 ? '▼' : '';
+  return (
+    <span className={`font-mono font-semibold ${tone}`} title="naive rank − smoothed rank">
+      <span aria-hidden className="mr-0.5 text-[10px]">
+        {arrow}
+      </span>
+      {fmt.signed(value)}
+    </span>
+  );
+}
+
+function buildColumns(slug: string, week: string | undefined) {
+  const num = 'text-right font-mono tabular-nums';
+  return [
+    col.accessor('smoothedRank', {
+      id: 'smoothedRank',
+      header: 'Smoothed #',
+      meta: { className: num },
+      cell: (c) => <span className="font-semibold text-ink-900">{c.getValue()}</span>,
+    }),
+    col.accessor('naiveRank', { id: 'naiveRank', header: 'Naive #', meta: { className: num } }),
+    col.accessor('drift', {
+      id: 'drift',
+      header: 'Drift',
+      meta: { className: num },
+      cell: (c) => <Drift value={c.getValue()} />,
+    }),
+    col.accessor('title', {
+      id: 'title',
+      header: 'Item',
+      meta: { className: 'min-w-[14rem]' },
+      cell: (c) => (
+        <Link
+          to={`/categories/${slug}/items/${encodeURIComponent(c.row.original.sku)}${week ? `?week=${week}` : ''}`}
+          className="group block"
+        >
+          <span className="block font-semibold text-ink-900 group-hover:underline">{c.getValue()}</span>
+          <span className="font-mono text-xs text-ink-500">{c.row.original.sku}</span>
+        </Link>
+      ),
+    }),
+    col.accessor('n', { id: 'n', header: 'Reviews', meta: { className: num } }),
+    col.accessor('rawMean', {
+      id: 'rawMean',
+      header: 'Raw mean',
+      meta: { className: num },
+      cell: (c) => fmt.num(c.getValue(), 2),
+    }),
+    col.accessor('smoothed', {
+      id: 'smoothed',
+      header: 'Smoothed',
+      meta: { className: num },
+      cell: (c) => <span className="font-semibold">{fmt.num(c.getValue(), 3)}</span>,
+    }),
+    col.accessor('lowerBound', {
+      id: 'lowerBound',
+      header: 'Lower bound',
+      meta: { className: num },
+      cell: (c) => fmt.num(c.getValue(), 3),
+    }),
+    col.accessor('newestAgeDays', {
+      id: 'newestAgeDays',
+      header: 'Newest review',
+      meta: { className: 'text-right whitespace-nowrap' },
+      cell: (c) => fmt.age(c.getValue()),
+    }),
+    col.display({
+      id: 'flags',
+      header: 'Flags',
+      cell: ({ row: { original: r } }) => (
+        <span className="flex flex-wrap gap-1">
+          {r.stale ? <FlagBadge flag="stale" reason={r.staleReason} /> : null}
+          {r.thin ? <FlagBadge flag="thin" reason={`${r.n} reviews`} /> : null}
+          {r.negativeCluster ? <FlagBadge flag="cluster" reason={r.clusterReason} /> : null}
+          {r.mover ? (
+            <FlagBadge
+              flag="mover"
+              reason={`moved ${fmt.signed(r.smoothedMovement)} places (smoothed) since last week`}
+            />
+          ) : null}
+        </span>
+      ),
+    }),
+  ];
+}
+
+const sortable = new Set<string>([
+  'smoothedRank',
+  'naiveRank',
+  'drift',
+  'title',
+  'n',
+  'rawMean',
+  'smoothed',
+  'lowerBound',
+  'newestAgeDays',
+]);
+
+/** The server sorts and pages; the table only shows the page and asks for another sort through the URL. */
+export function StandingsTable({
+  slug,
+  week,
+  rows,
+  sort,
+  dir,
+  onSort,
+  caption,
+}: {
+  slug: string;
+  week: string | undefined;
+  rows: StandingsRow[];
+  sort: StandingsSort;
+  dir: 'asc' | 'desc';
+  onSort: (sort: StandingsSort, dir: 'asc' | 'desc') => void;
+  caption: string;
+}) {
+  const sorting: SortingState = [{ id: sort, desc: dir === 'desc' }];
+  // TanStack Table returns functions the React Compiler cannot memoise; this table re-renders with its data.
+  // eslint-disable-next-line react-hooks/incompatible-library
+  const table = useReactTable({
+    data: rows,
+    columns: buildColumns(slug, week),
+    state: { sorting },
+    manualSorting: true,
+    manualPagination: true,
+    enableSortingRemoval: false,
+    getCoreRowModel: getCoreRowModel(),
+    getRowId: (r) => r.sku,
+  });
+
+  return (
+    <div className="overflow-x-auto rounded-lg border border-ink-100 bg-white">
+      <table className="w-full min-w-[60rem] text-sm">
+        <caption className="sr-only">{caption}</caption>
+        <thead className="sticky top-0 bg-ink-50 text-left text-xs uppercase tracking-wide text-ink-700">
+          {table.getHeaderGroups().map((group) => (
+            <tr key={group.id}>
+              {group.headers.map((header) => {
+                const id = header.column.id;
+                const active = id === sort;
+                const className =
+                  (header.column.columnDef.meta as { className?: string } | undefined)?.className ?? '';
+                const label = flexRender(header.column.columnDef.header, header.getContext());
+                return (
+                  <th
+                    key={header.id}
+                    scope="col"
+                    aria-sort={
+                      active
+                        ? dir === 'asc'
+                          ? 'ascending'
+                          : 'descending'
+                        : sortable.has(id)
+                          ? 'none'
+                          : undefined
+                    }
+                    className={`px-3 py-2 font-semibold ${className.includes('text-right') ? 'text-right' : ''}`}
+                  >
+                    {sortable.has(id) ? (
+                      <button
+                        type="button"
+                        className={`inline-flex items-center gap-1 rounded px-1 py-0.5 uppercase hover:bg-ink-100 ${active ? 'text-ink-900' : ''}`}
+                        onClick={() =>
+                          onSort(
+                            id as StandingsSort,
+                            active
+                              ? dir === 'asc'
+                                ? 'desc'
+                                : 'asc'
+                              : id === 'drift' ||
+                                  id === 'n' ||
+                                  id === 'smoothed' ||
+                                  id === 'rawMean' ||
+                                  id === 'lowerBound'
+                                ? 'desc'
+                                : 'asc',
+                          )
+                        }
+                      >
+                        {label}
+                        <span
+                          aria-hidden
+                          className={`text-[10px] ${active ? 'text-brass-700' : 'text-ink-300'}`}
+                        >
+                          {active ? (dir === 'asc' ? '▲' : '▼') : '↕'}
+                        </span>
+                      </button>
+                    ) : (
+                      label
+                    )}
+                  </th>
+                );
+              })}
+            </tr>
+          ))}
+        </thead>
+        <tbody>
+          {table.getRowModel().rows.map((row) => (
+            <tr key={row.id} className="border-t border-ink-50 hover:bg-paper">
+              {row.getVisibleCells().map((cell) => (
+                <td
+                  key={cell.id}
+                  className={`px-3 py-2 align-top ${(cell.column.columnDef.meta as { className?: string } | undefined)?.className ?? ''}`}
+                >
+                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                </td>
+              ))}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}

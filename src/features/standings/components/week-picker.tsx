@@ -1,0 +1,37 @@
+import type { WeekSummary } from '../../../../shared/schemas/standings.schema';
+import { fmt } from '../../../lib/format';
+
+/** Chooses a snapshot week; the empty value means the latest. */
+export function WeekPicker({
+  weeks,
+  value,
+  onChange,
+  id = 'week-picker',
+}: {
+  weeks: WeekSummary[];
+  value: string | undefined;
+  onChange: (week: string | undefined) => void;
+  id?: string;
+}) {
+  const latest = weeks[0];
+  return (
+    <div className="flex items-center gap-2">
+      <label htmlFor={id} className="text-sm font-semibold text-ink-700">
+        Week
+      </label>
+      <select
+        id={id}
+        className="rounded-md border border-ink-200 bg-white px-2 py-1.5 font-mono text-sm"
+        value={value && value !== latest?.isoWeek ? value : ''}
+        onChange={(e) => onChange(e.target.value || undefined)}
+      >
+        {weeks.map((w, i) => (
+          <option key={w.isoWeek} value={i === 0 ? '' : w.isoWeek}>
+            {w.isoWeek} · to {fmt.date(new Date(new Date(w.cutoff).getTime() - 1).toISOString())}
+            {i === 0 ? ' (latest)' : ''}
+          </option>
+        ))}
+      </select>
+    </div>
+  );
+}
