@@ -1,4 +1,6 @@
 import type { Server } from 'node:http';
+import { startScheduler } from '../jobs/index';
+import type { Scheduler } from '../jobs/scheduler';
 import { createApp } from './app';
 import { loadConfig } from './config/env';
 import { closeDatabase } from './db/sequelize';
@@ -29,6 +31,11 @@ async function main(): Promise<void> {
     for (const account of demoAccounts)
       say(`  ${account.role.padEnd(8)} ${account.email.padEnd(34)} ${account.password}`);
   }
+  let scheduler: Scheduler | undefined;
+  if (config.scheduler) {
+    scheduler = await startScheduler({ log: (line) => say(line) });
+    say(`Scheduler running with ${scheduler.scheduleCount} enabled schedule(s).`);
+  }
   say('Press Ctrl-C to stop.');
 
   let stopping = false;
@@ -36,6 +43,14 @@ async function main(): Promise<void> {
     if (stopping) return;
     stopping = true;
     say(`${signal} received; stopping...`);
+    if (scheduler) {
+      const { finished } = await scheduler.stop(30_000);
+      say(
+        finished
+          ? 'Scheduler stopped.'
+          : 'The running job did not finish in time; its transaction rolls back.',
+      );
+    }
     await new Promise<void>((resolve) => {
       server.close(() => resolve());
       server.closeIdleConnections();

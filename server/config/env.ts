@@ -19,6 +19,7 @@ const envSchema = z.object({
   LOGIN_MAX_ATTEMPTS: z.coerce.number().int().min(1).default(10),
   LOGIN_WINDOW_MINUTES: z.coerce.number().int().min(1).default(15),
   BALLAST_DEMO: bool.optional(),
+  BALLAST_SCHEDULER: bool.default(true),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 
@@ -38,6 +39,8 @@ export type Config = {
   cookieSecure: 'auto' | boolean;
   login: { maxAttempts: number; windowMinutes: number };
   logLevel: Env['LOG_LEVEL'];
+  /** Run report schedules in this process; switch off on app servers that should only answer requests. */
+  scheduler: boolean;
   /** Load the invented demo scenario; on by default only with the embedded database. */
   demo: boolean;
   rootDir: string;
@@ -66,6 +69,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     cookieSecure: e.COOKIE_SECURE === 'auto' ? 'auto' : e.COOKIE_SECURE === 'true',
     login: { maxAttempts: e.LOGIN_MAX_ATTEMPTS, windowMinutes: e.LOGIN_WINDOW_MINUTES },
     logLevel: e.LOG_LEVEL,
+    scheduler: e.BALLAST_SCHEDULER,
     demo: e.BALLAST_DEMO ?? !e.DATABASE_URL,
     rootDir,
   };

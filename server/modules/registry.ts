@@ -4,8 +4,10 @@ import { guard } from '../middleware/guard';
 import { authRoutes } from './auth/auth.routes';
 import { categoryRoutes } from './categories/categories.routes';
 import { healthRoutes } from './health/health.routes';
+import { jobRoutes } from './jobs/jobs.routes';
 import { openapiRoutes } from './openapi/openapi.routes';
 import { scoreRoutes } from './score/score.routes';
+import { scheduleRoutes } from './schedules/schedules.routes';
 import { standingsRoutes } from './standings/standings.routes';
 import { userRoutes } from './users/users.routes';
 
@@ -15,6 +17,8 @@ export const apiRoutes: RouteDef[] = [
   ...authRoutes,
   ...categoryRoutes,
   ...userRoutes,
+  ...scheduleRoutes,
+  ...jobRoutes,
   ...openapiRoutes,
   ...scoreRoutes,
   ...standingsRoutes,

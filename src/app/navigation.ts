@@ -7,6 +7,8 @@ export const navItems: NavItem[] = [
   { to: '/', label: 'Overview', roles: ['admin', 'ops', 'analyst', 'exec'] },
   { to: '/', label: 'My categories', roles: ['manager'] },
   { to: '/calibrate', label: 'Calibration', roles: ['analyst', 'manager', 'admin'] },
+  { to: '/schedules', label: 'Schedules', roles: ['ops', 'admin'] },
+  { to: '/jobs', label: 'Job history', roles: ['ops', 'admin'] },
   { to: '/admin/people', label: 'People & ownership', roles: ['admin'] },
   { to: '/admin/audit', label: 'Audit log', roles: ['admin'] },
 ];

@@ -39,6 +39,16 @@ export const queryKeys = {
     all: ['calibration-notes'] as const,
     list: (slug: string) => ['calibration-notes', 'list', { slug }] as const,
   },
+  schedules: {
+    all: ['schedules'] as const,
+    list: () => ['schedules', 'list'] as const,
+    preview: (input: { cron: string; tz: string }) => ['schedules', 'preview', input] as const,
+  },
+  jobs: {
+    all: ['jobs'] as const,
+    list: (filter: { page: number; status?: string; category?: number }) => ['jobs', 'list', filter] as const,
+    detail: (id: number) => ['jobs', 'detail', { id }] as const,
+  },
   audit: {
     all: ['audit'] as const,
     list: (filter: { page: number; action?: string; actor?: string }) => ['audit', 'list', filter] as const,

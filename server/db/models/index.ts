@@ -8,6 +8,8 @@ import { Category } from './category.model';
 import { ImportBatch } from './import-batch.model';
 import { ImportRowError } from './import-row-error.model';
 import { Item } from './item.model';
+import { JobRun } from './job-run.model';
+import { ReportSchedule } from './report-schedule.model';
 import { Review } from './review.model';
 import { Role } from './role.model';
 import { Session } from './session.model';
@@ -32,6 +34,8 @@ export function initModels(sequelize: Sequelize): void {
     ApiToken,
     Snapshot,
     SnapshotRow,
+    ReportSchedule,
+    JobRun,
     CalibrationNote,
   ];
   for (const model of models) model.initModel(sequelize);
@@ -58,6 +62,8 @@ export function initModels(sequelize: Sequelize): void {
   AggregateObservation.belongsTo(Item, { foreignKey: 'itemId', as: 'item' });
   ImportBatch.hasMany(ImportRowError, { foreignKey: 'batchId', as: 'rowErrors' });
   ImportBatch.belongsTo(User, { foreignKey: 'userId', as: 'user', constraints: false });
+  JobRun.belongsTo(ReportSchedule, { foreignKey: 'scheduleId', as: 'schedule', constraints: false });
+  JobRun.belongsTo(Category, { foreignKey: 'categoryId', as: 'category', constraints: false });
   Snapshot.belongsTo(Category, { foreignKey: 'categoryId', as: 'category' });
   Snapshot.hasMany(SnapshotRow, { foreignKey: 'snapshotId', as: 'rows' });
   SnapshotRow.belongsTo(Snapshot, { foreignKey: 'snapshotId', as: 'snapshot' });
@@ -74,6 +80,8 @@ export {
   ImportBatch,
   ImportRowError,
   Item,
+  JobRun,
+  ReportSchedule,
   Review,
   Role,
   Session,
