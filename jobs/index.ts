@@ -1,5 +1,6 @@
 import cron from 'node-cron';
 import * as backfillJob from './backfill.job';
+import * as digestJob from './digest.job';
 import type { JobKinds } from './job-context';
 import { Scheduler, type CronDriver, type SchedulerOptions } from './scheduler';
 import * as snapshotJob from './snapshot.job';
@@ -8,6 +9,7 @@ import * as snapshotJob from './snapshot.job';
 export const jobKinds: JobKinds = {
   snapshot: snapshotJob.run,
   backfill: backfillJob.run,
+  digest: digestJob.run,
 };
 
 /** The one place Ballast calls cron.schedule: each schedule ticks in its own IANA time zone. */

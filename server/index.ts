@@ -5,6 +5,8 @@ import { createApp } from './app';
 import { loadConfig } from './config/env';
 import { closeDatabase } from './db/sequelize';
 import { logger, setLogLevel } from './lib/logger';
+import { startLocalSmtpServer, type LocalSmtpServer } from './modules/mail/local-smtp';
+import { createMailTransport, startMailWorker } from './modules/mail/mail.service';
 import { ensureClientBuilt } from './runtime/client-build';
 import { prepareDatabase } from './runtime/database';
 import { demoAccounts, seedDemo } from './runtime/seed';
@@ -36,6 +38,12 @@ async function main(): Promise<void> {
     scheduler = await startScheduler({ log: (line) => say(line) });
     say(`Scheduler running with ${scheduler.scheduleCount} enabled schedule(s).`);
   }
+  let localSmtp: LocalSmtpServer | undefined;
+  if (!config.mail.smtp) {
+    localSmtp = await startLocalSmtpServer({ port: config.mail.localPort });
+    say(`Local SMTP server on 127.0.0.1:${localSmtp.port}; mail it receives is in the Outbox screen.`);
+  } else say(`Mail goes out through ${config.mail.smtp.host}:${config.mail.smtp.port}.`);
+  const mailWorker = startMailWorker({ transport: createMailTransport(config.mail, localSmtp?.port) });
   say('Press Ctrl-C to stop.');
 
   let stopping = false;
@@ -51,6 +59,8 @@ async function main(): Promise<void> {
           : 'The running job did not finish in time; its transaction rolls back.',
       );
     }
+    await mailWorker.stop();
+    await localSmtp?.close();
     await new Promise<void>((resolve) => {
       server.close(() => resolve());
       server.closeIdleConnections();

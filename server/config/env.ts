@@ -21,6 +21,15 @@ const envSchema = z.object({
   BALLAST_DEMO: bool.optional(),
   BALLAST_SCHEDULER: bool.default(true),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  SMTP_HOST: z.string().min(1).optional(),
+  SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(587),
+  SMTP_USER: z.string().optional(),
+  SMTP_PASS: z.string().optional(),
+  SMTP_SECURE: bool.default(false),
+  MAIL_FROM: z.string().min(3).default('Ballast digests <digests@ballast.invalid>'),
+  BALLAST_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(2525),
+  DIGEST_PAPER: z.enum(['A4', 'LETTER', 'a4', 'letter']).default('A4'),
+  UNSUBSCRIBE_SECRET: z.string().min(16).optional(),
 });
 
 export type Env = z.infer<typeof envSchema>;
@@ -41,6 +50,21 @@ export type Config = {
   logLevel: Env['LOG_LEVEL'];
   /** Run report schedules in this process; switch off on app servers that should only answer requests. */
   scheduler: boolean;
+  mail: {
+    /** A real SMTP server; null means Ballast's own local SMTP server on loopback (BALLAST_SMTP_PORT). */
+    smtp: {
+      host: string;
+      port: number;
+      secure: boolean;
+      user: string | undefined;
+      pass: string | undefined;
+    } | null;
+    localPort: number;
+    from: string;
+    /** Signs unsubscribe links; SESSION_SECRET when not set. */
+    unsubscribeSecret: string;
+  };
+  digestPaper: 'A4' | 'LETTER';
   /** Load the invented demo scenario; on by default only with the embedded database. */
   demo: boolean;
   rootDir: string;
@@ -70,6 +94,21 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     login: { maxAttempts: e.LOGIN_MAX_ATTEMPTS, windowMinutes: e.LOGIN_WINDOW_MINUTES },
     logLevel: e.LOG_LEVEL,
     scheduler: e.BALLAST_SCHEDULER,
+    mail: {
+      smtp: e.SMTP_HOST
+        ? {
+            host: e.SMTP_HOST,
+            port: e.SMTP_PORT,
+            secure: e.SMTP_SECURE,
+            user: e.SMTP_USER,
+            pass: e.SMTP_PASS,
+          }
+        : null,
+      localPort: e.BALLAST_SMTP_PORT,
+      from: e.MAIL_FROM,
+      unsubscribeSecret: e.UNSUBSCRIBE_SECRET ?? e.SESSION_SECRET ?? 'ballast-development-unsubscribe-secret',
+    },
+    digestPaper: e.DIGEST_PAPER.toUpperCase() as 'A4' | 'LETTER',
     demo: e.BALLAST_DEMO ?? !e.DATABASE_URL,
     rootDir,
   };

@@ -3,10 +3,13 @@ import type { RouteDef } from '../lib/route';
 import { guard } from '../middleware/guard';
 import { authRoutes } from './auth/auth.routes';
 import { categoryRoutes } from './categories/categories.routes';
+import { digestRoutes } from './digests/digests.routes';
 import { healthRoutes } from './health/health.routes';
 import { jobRoutes } from './jobs/jobs.routes';
+import { mailRoutes } from './mail/mail.routes';
 import { openapiRoutes } from './openapi/openapi.routes';
 import { scoreRoutes } from './score/score.routes';
+import { subscriptionRoutes } from './subscriptions/subscriptions.routes';
 import { scheduleRoutes } from './schedules/schedules.routes';
 import { standingsRoutes } from './standings/standings.routes';
 import { userRoutes } from './users/users.routes';
@@ -22,6 +25,9 @@ export const apiRoutes: RouteDef[] = [
   ...openapiRoutes,
   ...scoreRoutes,
   ...standingsRoutes,
+  ...digestRoutes,
+  ...mailRoutes,
+  ...subscriptionRoutes,
 ];
 
 export function buildApiRouter(routes: RouteDef[]): Router {

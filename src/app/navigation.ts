@@ -9,6 +9,10 @@ export const navItems: NavItem[] = [
   { to: '/calibrate', label: 'Calibration', roles: ['analyst', 'manager', 'admin'] },
   { to: '/schedules', label: 'Schedules', roles: ['ops', 'admin'] },
   { to: '/jobs', label: 'Job history', roles: ['ops', 'admin'] },
+  { to: '/digests', label: 'Digests', roles: 'any' },
+  { to: '/my-digests', label: 'My digests', roles: ['manager', 'exec'] },
+  { to: '/deliveries', label: 'Mail deliveries', roles: ['ops', 'admin'] },
+  { to: '/outbox', label: 'Outbox', roles: ['ops', 'admin'] },
   { to: '/admin/people', label: 'People & ownership', roles: ['admin'] },
   { to: '/admin/audit', label: 'Audit log', roles: ['admin'] },
 ];

@@ -19,6 +19,7 @@ async function requireSignIn({ request }: LoaderFunctionArgs) {
 
 export const router = createBrowserRouter([
   { path: '/sign-in', lazy: () => import('./routes/auth/sign-in'), errorElement: <RouteError /> },
+  { path: '/unsubscribe', lazy: () => import('./routes/digests/unsubscribe'), errorElement: <RouteError /> },
   {
     path: '/',
     element: <AppShell />,
@@ -34,6 +35,10 @@ export const router = createBrowserRouter([
       { path: 'jobs', lazy: () => import('./routes/jobs/jobs') },
       { path: 'admin/people', lazy: () => import('./routes/admin/people') },
       { path: 'admin/audit', lazy: () => import('./routes/admin/audit') },
+      { path: 'digests', lazy: () => import('./routes/digests/archive') },
+      { path: 'my-digests', lazy: () => import('./routes/digests/my-digests') },
+      { path: 'outbox', lazy: () => import('./routes/outbox/outbox') },
+      { path: 'deliveries', lazy: () => import('./routes/outbox/deliveries') },
       { path: '*', lazy: () => import('./routes/misc/not-found') },
     ],
   },

@@ -13,6 +13,25 @@ export const queryKeys = {
     all: ['users'] as const,
     list: () => ['users', 'list'] as const,
   },
+  digests: {
+    all: ['digests'] as const,
+    category: (slug: string) => ['digests', 'category', { slug }] as const,
+    portfolio: () => ['digests', 'portfolio'] as const,
+  },
+  subscriptions: {
+    all: ['subscriptions'] as const,
+    mine: () => ['subscriptions', 'mine'] as const,
+    unsubscribe: (token: string) => ['subscriptions', 'unsubscribe', { token }] as const,
+  },
+  outbox: {
+    all: ['outbox'] as const,
+    list: (page: number) => ['outbox', 'list', { page }] as const,
+    detail: (id: number) => ['outbox', 'detail', { id }] as const,
+  },
+  deliveries: {
+    all: ['deliveries'] as const,
+    list: (filter: { page: number; status?: string }) => ['deliveries', 'list', filter] as const,
+  },
   portfolio: {
     all: ['portfolio'] as const,
     list: () => ['portfolio', 'list'] as const,

@@ -46,6 +46,21 @@ const expected: Record<string, Allowed> = {
   'GET /api/categories/:slug/calibration-notes': 'signed-in',
   'POST /api/categories/:slug/calibration-notes': ['analyst', 'manager', 'admin'],
   'POST /api/score': 'signed-in',
+  'GET /api/categories/:slug/digests': 'signed-in',
+  'GET /api/categories/:slug/digests/:week/pdf': 'signed-in',
+  'GET /api/portfolio/digests': ['admin', 'ops', 'analyst', 'exec'],
+  'GET /api/portfolio/digests/:week/pdf': ['admin', 'ops', 'analyst', 'exec'],
+  'POST /api/digests/produce': ['admin', 'ops'],
+  'GET /api/outbox': ['admin', 'ops'],
+  'GET /api/outbox/:id': ['admin', 'ops'],
+  'GET /api/outbox/:id/html': ['admin', 'ops'],
+  'GET /api/outbox/:id/attachments/:index': ['admin', 'ops'],
+  'GET /api/deliveries': ['admin', 'ops'],
+  'POST /api/deliveries/:id/resend': ['admin', 'ops'],
+  'GET /api/me/digests': 'signed-in',
+  'PUT /api/me/digests': 'signed-in',
+  'GET /api/unsubscribe': 'public',
+  'POST /api/unsubscribe': 'public',
 };
 
 /** Category-scoped routes: a manager reaches the categories they own and gets 403 on the others. */

@@ -5,10 +5,14 @@ import { AuditEvent } from './audit-event.model';
 import { CalibrationNote } from './calibration-note.model';
 import { CategoryOwner } from './category-owner.model';
 import { Category } from './category.model';
+import { DigestSubscription } from './digest-subscription.model';
+import { Digest } from './digest.model';
 import { ImportBatch } from './import-batch.model';
 import { ImportRowError } from './import-row-error.model';
 import { Item } from './item.model';
 import { JobRun } from './job-run.model';
+import { MailDelivery } from './mail-delivery.model';
+import { OutboxMessage } from './outbox-message.model';
 import { ReportSchedule } from './report-schedule.model';
 import { Review } from './review.model';
 import { Role } from './role.model';
@@ -37,6 +41,10 @@ export function initModels(sequelize: Sequelize): void {
     ReportSchedule,
     JobRun,
     CalibrationNote,
+    Digest,
+    DigestSubscription,
+    MailDelivery,
+    OutboxMessage,
   ];
   for (const model of models) model.initModel(sequelize);
 
@@ -68,6 +76,8 @@ export function initModels(sequelize: Sequelize): void {
   Snapshot.hasMany(SnapshotRow, { foreignKey: 'snapshotId', as: 'rows' });
   SnapshotRow.belongsTo(Snapshot, { foreignKey: 'snapshotId', as: 'snapshot' });
   SnapshotRow.belongsTo(Item, { foreignKey: 'itemId', as: 'item' });
+  MailDelivery.belongsTo(Digest, { foreignKey: 'digestId', as: 'digest' });
+  Digest.hasMany(MailDelivery, { foreignKey: 'digestId', as: 'deliveries' });
 }
 
 export {
@@ -77,10 +87,14 @@ export {
   CalibrationNote,
   Category,
   CategoryOwner,
+  Digest,
+  DigestSubscription,
   ImportBatch,
   ImportRowError,
   Item,
   JobRun,
+  MailDelivery,
+  OutboxMessage,
   ReportSchedule,
   Review,
   Role,

@@ -1,0 +1,36 @@
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import Handlebars from 'handlebars';
+import type { DigestKeyFigure, DigestSummary } from '../../shared/schemas/digests.schema';
+
+export type DigestMailView = {
+  summary: DigestSummary;
+  heading: string;
+  weekRange: string;
+  preheader: string;
+  fileName: string;
+  pageCount: number;
+  recipient: string;
+  targetLabel: string;
+  unsubscribeUrl: string;
+};
+
+const dir = import.meta.dirname;
+// Separate instances: the HTML one escapes every value, the text one must not (no markup in plain text).
+const htmlEngine = Handlebars.create();
+const textEngine = Handlebars.create();
+const html = htmlEngine.compile(readFileSync(path.join(dir, 'digest.html.hbs'), 'utf8'), { strict: false });
+const text = textEngine.compile(readFileSync(path.join(dir, 'digest.text.hbs'), 'utf8'), { noEscape: true });
+
+function rows(figures: DigestKeyFigure[], perRow: number): DigestKeyFigure[][] {
+  const out: DigestKeyFigure[][] = [];
+  for (let i = 0; i < figures.length; i += perRow) out.push(figures.slice(i, i + perRow));
+  return out;
+}
+
+export function renderDigestMail(view: DigestMailView): { html: string; text: string } {
+  return {
+    html: html({ ...view, figureRows: rows(view.summary.keyFigures, 3) }),
+    text: text(view).replace(/\n{3,}/g, '\n\n'),
+  };
+}

@@ -1,0 +1,153 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { lastCompletedIsoWeek } from '../../../shared/iso-week';
+import { Category, Digest } from '../../../server/db/models';
+import { demoStory } from '../../../server/demo/scenario';
+import {
+  loadCategoryDigestData,
+  loadPortfolioDigestData,
+  produceDigests,
+} from '../../../server/modules/digests/digests.service';
+import { renderCategoryDigest } from '../../../templates/pdf/category-digest';
+import { renderPortfolioDigest } from '../../../templates/pdf/portfolio-digest';
+import { testDemoAsOf } from '../../helpers/demo-data';
+import { setupTestApp, type TestApp } from '../../helpers/test-app';
+import { demoWithSnapshots } from './demo-weeks';
+import { pdfPages, saveArtefacts } from './pdf-text';
+
+const week = lastCompletedIsoWeek(testDemoAsOf);
+let t: TestApp;
+beforeAll(async () => {
+  t = await setupTestApp();
+  await demoWithSnapshots(3);
+}, 180_000);
+afterAll(async () => t.close());
+
+async function categoryId(slug: string): Promise<number> {
+  return (await Category.findOne({ where: { slug } }))!.id;
+}
+
+describe('category digest PDF', () => {
+  it('renders every section of the Portable Power digest with the figures of the snapshot', async () => {
+    const data = await loadCategoryDigestData(await categoryId('portable-power'), week, testDemoAsOf);
+    const { pdf, pages } = await renderCategoryDigest(data, 'A4');
+    saveArtefacts('portable-power-a4', pdf, 4);
+    const text = await pdfPages(pdf);
+    expect(text.length).toBe(pages);
+    const all = text.join('\n');
+    const first = text[0]!;
+    expect(first).toContain('Portable Power');
+    expect(first).toContain(`Week ${week}`);
+    expect(first).toContain(data.figures.reviewCount.toLocaleString('en-GB'));
+    expect(first).toContain(data.figures.spearmanRho!.toFixed(3));
+    expect(first).toContain('The week in brief');
+    expect(first).toContain(`What changed since ${data.previous!.isoWeek}`);
+    for (const title of [
+      'Naive and smoothed ranks',
+      'Leaders on thin evidence',
+      'Buried by the raw sort',
+      'Stale evidence',
+      'Negative clusters',
+      'Movers since',
+      'What it would take',
+      'Full standings',
+      'Methods and parameters',
+      'Read with care',
+    ]) {
+      expect(all, title).toContain(title);
+    }
+    expect(all).toContain(demoStory.negativeBurst.sku);
+    expect(all).toContain('"battery swelled"');
+    expect(all).toContain(`Page ${pages} of ${pages}`);
+    const methods = text[pages - 1]!;
+    expect(methods).toContain(data.params.m.toFixed(3));
+    expect(methods).toContain(data.params.C.toFixed(4));
+    expect(methods).toContain(`${data.params.staleAfterDays} days without a new review`);
+    expect(methods).toContain(`${data.params.halfLifeDays} days`);
+    // every item appears once in the standings, whose header row repeats on each of its pages
+    for (const item of data.items) expect(all).toContain(item.sku);
+    const standingsPages = text.slice(1).filter((p) => p.includes('Full standings'));
+    expect(standingsPages.length).toBeGreaterThan(1);
+    for (const p of standingsPages) expect(p).toMatch(/# SKU Item Reviews Raw Score Lower/);
+    // reviewer identifiers of the demo look like rv-000123: none may appear
+    expect(all).not.toMatch(/rv-\d{6}/);
+  });
+
+  it('shows the thin leader, the buried item and the stale item of the demo in their sections', async () => {
+    const checks: [string, string, string][] = [
+      ['thinLeader', 'Leaders on thin evidence', 'Buried by the raw sort'],
+      ['buriedStrong', 'Buried by the raw sort', 'Stale evidence'],
+      ['staleItem', 'Stale evidence', 'Negative clusters'],
+    ];
+    for (const [key, from, to] of checks) {
+      const story = demoStory[key as keyof typeof demoStory];
+      const category = await Category.findOne({ where: { slug: story.category } });
+      const data = await loadCategoryDigestData(category!.id, week, testDemoAsOf);
+      const all = (await pdfPages((await renderCategoryDigest(data, 'A4')).pdf)).slice(1).join('\n');
+      const section = all.slice(all.indexOf(from), all.indexOf(to));
+      expect(section, `${key} in ${from}`).toContain(story.sku);
+    }
+  });
+
+  it('lays out a US Letter digest on Letter pages', async () => {
+    const data = await loadCategoryDigestData(await categoryId('kettles-and-brewers'), week, testDemoAsOf);
+    const { pdf } = await renderCategoryDigest(data, 'LETTER');
+    saveArtefacts('kettles-letter', pdf, 2);
+    expect(pdf.toString('latin1')).toMatch(/\/MediaBox \[0 0 612 792\]/);
+  });
+
+  it('keeps hostile and very long titles and titles in other scripts inside their cells', async () => {
+    const data = await loadCategoryDigestData(await categoryId('portable-power'), week, testDemoAsOf);
+    const long = `Ultra ${'long '.repeat(60)}`.trim().slice(0, 300);
+    expect([...long].length).toBe(300);
+    data.items[0] = { ...data.items[0]!, title: '<script>alert(1)</script>' };
+    data.items[1] = { ...data.items[1]!, title: long };
+    data.items[2] = { ...data.items[2]!, title: 'Électrique bouilloire Ōsaka – Łódź édition ñ' };
+    data.items[3] = { ...data.items[3]!, title: 'Чайник электрический · Ηλεκτρικός βραστήρας' };
+    data.items[4] = { ...data.items[4]!, title: '電気ケトル 1.7L · غلاية كهربائية · קומקום' };
+    const { pdf, pages } = await renderCategoryDigest(data, 'A4');
+    saveArtefacts('hostile-titles', pdf, 8);
+    const all = (await pdfPages(pdf)).join('\n');
+    expect(all).toContain('<script>alert(1)</script>');
+    expect(all).toContain('Ultra long long');
+    expect(all).not.toContain(long);
+    expect(all).toMatch(/Ultra long[ a-z]*…/);
+    expect(all).toContain('Łódź');
+    expect(all).toContain('Чайник');
+    expect(all).toContain('Ηλεκτρικός');
+    expect(all).toContain('1.7L');
+    // the standings still fit the same number of rows per page as with plain titles
+    const plain = await loadCategoryDigestData(await categoryId('portable-power'), week, testDemoAsOf);
+    expect(pages).toBe((await renderCategoryDigest(plain, 'A4')).pages);
+  });
+});
+
+describe('portfolio digest PDF', () => {
+  it('opens with a cover comparing every category and gives each its own page', async () => {
+    const data = await loadPortfolioDigestData(week, null, testDemoAsOf);
+    const { pdf, pages } = await renderPortfolioDigest(data, 'A4');
+    saveArtefacts('portfolio-a4', pdf, 3);
+    const text = await pdfPages(pdf);
+    expect(pages).toBe(1 + data.categories.length);
+    expect(text[0]).toContain('Categories side by side');
+    for (const [i, c] of data.categories.entries()) {
+      expect(text[0]).toContain(c.category.name);
+      expect(text[i + 1]).toContain(c.category.name);
+      expect(text[i + 1]).toContain(c.figures.spearmanRho!.toFixed(3));
+    }
+  });
+});
+
+describe('produceDigests', () => {
+  it('stores one digest per category and week plus the portfolio, and replaces rather than duplicates', async () => {
+    const first = await produceDigests({ isoWeek: week, mail: false, now: testDemoAsOf });
+    const second = await produceDigests({ isoWeek: week, mail: false, now: testDemoAsOf });
+    expect(first.digests.filter((d) => d.kind === 'category')).toHaveLength(5);
+    expect(first.digests.some((d) => d.kind === 'portfolio')).toBe(true);
+    expect(second.digests.map((d) => d.id)).toEqual(first.digests.map((d) => d.id));
+    expect(await Digest.count()).toBe(6);
+    const stored = await Digest.findByPk(first.digests[0]!.id);
+    expect(stored!.pdf.subarray(0, 5).toString()).toBe('%PDF-');
+    expect(stored!.sha256).toMatch(/^[0-9a-f]{64}$/);
+    expect(stored!.pageCount).toBeGreaterThan(4);
+  });
+});
