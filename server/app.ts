@@ -9,6 +9,7 @@ import helmet from 'helmet';
 import type { Sequelize } from 'sequelize';
 import type { Config } from './config/env';
 import './lib/actor';
+import { bearerAuth } from './middleware/bearer-auth';
 import { errorHandler, notFoundApi } from './middleware/error-handler';
 import { configurePassport } from './modules/auth/passport';
 import { apiRoutes, buildApiRouter } from './modules/registry';
@@ -87,6 +88,7 @@ export function createApp({ config, sequelize }: AppDeps): Express {
     next();
   };
   app.use(attachActor);
+  app.use('/api', bearerAuth);
 
   const { csrfSynchronisedProtection } = csrfSync({
     getTokenFromRequest: (req) => req.get('x-csrf-token'),

@@ -5,6 +5,7 @@ import { createApp } from './app';
 import { loadConfig } from './config/env';
 import { closeDatabase } from './db/sequelize';
 import { logger, setLogLevel } from './lib/logger';
+import { resumeImports } from './modules/imports/imports.service';
 import { startLocalSmtpServer, type LocalSmtpServer } from './modules/mail/local-smtp';
 import { createMailTransport, startMailWorker } from './modules/mail/mail.service';
 import { ensureClientBuilt } from './runtime/client-build';
@@ -17,7 +18,8 @@ async function main(): Promise<void> {
   const config = loadConfig();
   setLogLevel(config.logLevel);
   const { sequelize, embedded } = await prepareDatabase(config, say);
-  const demo = config.demo ? await seedDemo(say) : false;
+  const demo = config.demo ? await seedDemo(say, { reviews: true }) : false;
+  await resumeImports(say);
   if (!process.argv.includes('--no-build')) ensureClientBuilt(config.rootDir, say);
 
   const app = createApp({ config, sequelize });

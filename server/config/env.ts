@@ -19,6 +19,7 @@ const envSchema = z.object({
   LOGIN_MAX_ATTEMPTS: z.coerce.number().int().min(1).default(10),
   LOGIN_WINDOW_MINUTES: z.coerce.number().int().min(1).default(15),
   BALLAST_DEMO: bool.optional(),
+  BALLAST_IMPORT_MAX_MB: z.coerce.number().int().min(1).max(10_240).default(250),
   BALLAST_SCHEDULER: bool.default(true),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   SMTP_HOST: z.string().min(1).optional(),
@@ -50,6 +51,8 @@ export type Config = {
   logLevel: Env['LOG_LEVEL'];
   /** Run report schedules in this process; switch off on app servers that should only answer requests. */
   scheduler: boolean;
+  /** Largest import file accepted, in bytes. */
+  importMaxBytes: number;
   mail: {
     /** A real SMTP server; null means Ballast's own local SMTP server on loopback (BALLAST_SMTP_PORT). */
     smtp: {
@@ -110,6 +113,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     },
     digestPaper: e.DIGEST_PAPER.toUpperCase() as 'A4' | 'LETTER',
     demo: e.BALLAST_DEMO ?? !e.DATABASE_URL,
+    importMaxBytes: e.BALLAST_IMPORT_MAX_MB * 1024 * 1024,
     rootDir,
   };
 }

@@ -5,11 +5,13 @@ import { authRoutes } from './auth/auth.routes';
 import { categoryRoutes } from './categories/categories.routes';
 import { digestRoutes } from './digests/digests.routes';
 import { healthRoutes } from './health/health.routes';
+import { importRoutes } from './imports/imports.routes';
 import { jobRoutes } from './jobs/jobs.routes';
 import { mailRoutes } from './mail/mail.routes';
 import { openapiRoutes } from './openapi/openapi.routes';
 import { scoreRoutes } from './score/score.routes';
 import { subscriptionRoutes } from './subscriptions/subscriptions.routes';
+import { tokenRoutes } from './tokens/tokens.routes';
 import { scheduleRoutes } from './schedules/schedules.routes';
 import { standingsRoutes } from './standings/standings.routes';
 import { userRoutes } from './users/users.routes';
@@ -24,6 +26,8 @@ export const apiRoutes: RouteDef[] = [
   ...jobRoutes,
   ...openapiRoutes,
   ...scoreRoutes,
+  ...importRoutes,
+  ...tokenRoutes,
   ...standingsRoutes,
   ...digestRoutes,
   ...mailRoutes,

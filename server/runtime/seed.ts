@@ -1,7 +1,9 @@
 import type { RoleCode } from '../../shared/auth';
 import { Category, CategoryOwner, User } from '../db/models';
-import { demoCategories } from '../demo/scenario';
+import { db } from '../db/sequelize';
+import { demoCategories, generateDemoScenario } from '../demo/scenario';
 import { hashPassword } from '../modules/auth/auth.service';
+import { importReviewRows } from '../modules/imports/imports.service';
 
 export type DemoAccount = { role: RoleCode; email: string; name: string; password: string };
 
@@ -32,8 +34,15 @@ export const demoAccounts: DemoAccount[] = [
 /** The demo manager owns two categories, so the others show what "not yours" looks like. */
 export const demoManagerCategories = ['kettles-and-brewers', 'portable-power'];
 
-/** Seeds the demo accounts and categories once; later starts find them and leave everything alone. */
-export async function seedDemo(log: (line: string) => void): Promise<boolean> {
+/**
+ * Seeds the demo accounts and categories once; later starts find them and leave everything alone. With
+ * `reviews` (the start command, demo:reset) the scenario's reviews follow through the import service;
+ * tests leave it off and load their own fixed-date data.
+ */
+export async function seedDemo(
+  log: (line: string) => void,
+  options: { reviews?: boolean } = {},
+): Promise<boolean> {
   if ((await User.count()) > 0) return (await User.count({ where: { email: demoAccounts[0]!.email } })) > 0;
   log('Seeding the demo scenario (first start)...');
   const users = new Map<RoleCode, User>();
@@ -61,5 +70,48 @@ export async function seedDemo(log: (line: string) => void): Promise<boolean> {
       await CategoryOwner.create({ categoryId: row.id, userId: users.get('manager')!.id });
     }
   }
+  if (options.reviews) await loadDemoReviews(log);
   return true;
+}
+
+/**
+ * The demo's history ends today at 00:00 UTC (one rule, so a fresh start always shows reviews up to
+ * yesterday) and goes in through the import service like any upload.
+ */
+export function demoAsOf(now: Date = new Date()): Date {
+  return new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate()));
+}
+
+export async function loadDemoReviews(log: (line: string) => void, asOf = demoAsOf()): Promise<number> {
+  const started = Date.now();
+  const scenario = generateDemoScenario({ asOf });
+  const counts = await importReviewRows(
+    scenario.reviews,
+    'demo',
+    `Demo scenario as of ${asOf.toISOString().slice(0, 10)}`,
+  );
+  log(`Loaded ${counts.rowsInserted} demo reviews in ${((Date.now() - started) / 1000).toFixed(1)} s.`);
+  return counts.rowsInserted;
+}
+
+/** Tables a demo reset keeps: the migration log and the role list that a migration seeded. */
+const keptOnReset = new Set(['SequelizeMeta', 'roles']);
+
+/**
+ * Empties every Ballast table of the (demo) database in one transaction, then seeds the demo again. Only
+ * for demo installs: the caller checks that BALLAST_DEMO is on.
+ */
+export async function resetDemo(log: (line: string) => void): Promise<void> {
+  const sequelize = db();
+  const [tables] = (await sequelize.query(
+    "SELECT table_name AS name FROM information_schema.tables WHERE table_schema = DATABASE() AND table_type = 'BASE TABLE'",
+  )) as [{ name: string }[], unknown];
+  const wiped = tables.map((t) => t.name).filter((name) => !keptOnReset.has(name));
+  await sequelize.transaction(async (transaction) => {
+    await sequelize.query('SET FOREIGN_KEY_CHECKS = 0', { transaction });
+    for (const name of wiped) await sequelize.query(`DELETE FROM \`${name}\``, { transaction });
+    await sequelize.query('SET FOREIGN_KEY_CHECKS = 1', { transaction });
+  });
+  log(`Emptied ${wiped.length} tables.`);
+  await seedDemo(log, { reviews: true });
 }

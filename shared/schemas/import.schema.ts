@@ -318,6 +318,88 @@ export function createReviewCsvRowSchema(clock: Clock) {
     }));
 }
 
+const wholePattern = /^[+-]?\d+$/;
+
+function fastWhole(value: string | undefined, min: number, max: number, fallback?: number): number | null {
+  if (value === undefined || value.trim() === '') return fallback ?? null;
+  const text = value.trim();
+  if (!wholePattern.test(text)) return null;
+  const n = Number(text);
+  return n >= min && n <= max ? n : null;
+}
+
+function fastText(value: string | undefined, max: number): string | null {
+  if (value === undefined) return null;
+  const text = value.trim();
+  return text.length >= 1 && text.length <= max ? text : null;
+}
+
+/**
+ * The review CSV rules above, hand-written for speed on large files: returns the row when it is certainly
+ * valid, and null whenever anything is off, so the zod schema then decides and words the reason. The unit
+ * tests hold the two to the same answers.
+ */
+export function fastReviewCsvRow(cells: Record<string, string>, clock: Clock): ReviewRowDraft | null {
+  const reviewId = fastText(cells.review_id, importLimits.idMax);
+  const sku = fastText(cells.sku, importLimits.skuMax);
+  const categoryText = fastText(cells.category, importLimits.categoryMax);
+  if (reviewId === null || sku === null || categoryText === null) return null;
+  const category = categoryText.toLowerCase();
+  if (!slugPattern.test(category)) return null;
+  let title: string | undefined;
+  if (cells.title !== undefined) {
+    const t = cells.title.trim();
+    if (t.length > importLimits.titleMax) return null;
+    title = t === '' ? undefined : t;
+  }
+  const stars = fastWhole(cells.stars, 1, 5);
+  if (stars === null) return null;
+  const when = cells.reviewed_at;
+  if (when === undefined || when.trim() === '') return null;
+  const reviewedAt = parseTimestamp(when);
+  if (!reviewedAt || dateProblem('reviewed_at', reviewedAt, clock()) !== null) return null;
+  const helpfulYes = fastWhole(cells.helpful_yes, 0, importLimits.countMax, 0);
+  const helpfulNo = fastWhole(cells.helpful_no, 0, importLimits.countMax, 0);
+  if (helpfulYes === null || helpfulNo === null) return null;
+  let reviewerId: string | null = null;
+  if (cells.reviewer_id !== undefined) {
+    const r = cells.reviewer_id.trim();
+    if (r.length > importLimits.idMax) return null;
+    reviewerId = r === '' ? null : r;
+  }
+  let reviewerScore: number | null = null;
+  const score = cells.reviewer_score;
+  if (score !== undefined && score.trim() !== '') {
+    const text = score.trim();
+    if (!decimalPattern.test(text)) return null;
+    reviewerScore = Number(text);
+    if (!(reviewerScore >= 0 && reviewerScore <= 1)) return null;
+  }
+  let verified: boolean | null = null;
+  const flag = cells.verified;
+  if (flag !== undefined && flag.trim() !== '') {
+    const word = flag.trim().toLowerCase();
+    if (!Object.hasOwn(booleanWords, word)) return null;
+    verified = booleanWords[word]!;
+  }
+  const body = cells.text;
+  const text = body !== undefined && body.trim() !== '' ? body.slice(0, importLimits.textMax) : null;
+  return {
+    reviewId,
+    sku,
+    title,
+    category,
+    stars,
+    reviewedAt,
+    helpfulYes,
+    helpfulNo,
+    reviewerId,
+    reviewerScore,
+    verified,
+    text,
+  };
+}
+
 /** Decimal places written, so "4.3" may stand for anything that rounds to it. */
 function roundingTolerance(written: string): number {
   const decimals = written.includes('.') ? written.split('.')[1]!.replace(/e.*$/i, '').length : 0;

@@ -7,6 +7,7 @@ export const navItems: NavItem[] = [
   { to: '/', label: 'Overview', roles: ['admin', 'ops', 'analyst', 'exec'] },
   { to: '/', label: 'My categories', roles: ['manager'] },
   { to: '/calibrate', label: 'Calibration', roles: ['analyst', 'manager', 'admin'] },
+  { to: '/imports', label: 'Imports', roles: ['admin', 'ops', 'manager'] },
   { to: '/schedules', label: 'Schedules', roles: ['ops', 'admin'] },
   { to: '/jobs', label: 'Job history', roles: ['ops', 'admin'] },
   { to: '/digests', label: 'Digests', roles: 'any' },
@@ -15,6 +16,7 @@ export const navItems: NavItem[] = [
   { to: '/outbox', label: 'Outbox', roles: ['ops', 'admin'] },
   { to: '/admin/people', label: 'People & ownership', roles: ['admin'] },
   { to: '/admin/audit', label: 'Audit log', roles: ['admin'] },
+  { to: '/admin/tokens', label: 'API tokens', roles: ['admin'] },
 ];
 
 export function navFor(role: RoleCode): NavItem[] {

@@ -86,3 +86,39 @@ export async function api<T>(
   }
   return payload as T;
 }
+
+/**
+ * Sends a multipart form (a file upload) with the CSRF token; the answer is read like `api`'s. The browser
+ * sets the multipart content type and boundary itself.
+ */
+export async function upload<T>(path: string, form: FormData): Promise<T> {
+  const send = async (): Promise<Response> =>
+    fetch(path, {
+      method: 'POST',
+      headers: { accept: 'application/json', 'x-csrf-token': csrfToken ?? (await fetchCsrfToken()) },
+      credentials: 'same-origin',
+      body: form,
+    });
+  let res: Response;
+  try {
+    res = await send();
+    if (res.status === 403) {
+      const peek = (await res
+        .clone()
+        .json()
+        .catch(() => null)) as Partial<ApiErrorBody> | null;
+      if (peek?.error?.code === 'csrf_invalid') {
+        await fetchCsrfToken();
+        res = await send();
+      }
+    }
+  } catch {
+    throw new ApiError(0, 'network', 'Ballast cannot be reached. Check your connection and try again.');
+  }
+  const payload: unknown = await res.json().catch(() => null);
+  if (!res.ok) {
+    if (res.status === 401) goToSignIn();
+    throw toError(res.status, payload);
+  }
+  return payload as T;
+}

@@ -32,6 +32,15 @@ export const queryKeys = {
     all: ['deliveries'] as const,
     list: (filter: { page: number; status?: string }) => ['deliveries', 'list', filter] as const,
   },
+  imports: {
+    all: ['imports'] as const,
+    list: () => ['imports', 'list'] as const,
+    detail: (id: number) => ['imports', 'detail', { id }] as const,
+  },
+  tokens: {
+    all: ['tokens'] as const,
+    list: () => ['tokens', 'list'] as const,
+  },
   portfolio: {
     all: ['portfolio'] as const,
     list: () => ['portfolio', 'list'] as const,

@@ -35,6 +35,7 @@ export class ImportBatch extends Model<InferAttributes<ImportBatch>, InferCreati
   declare updatedAt: CreationOptional<Date>;
 
   static initModel(sequelize: Sequelize): void {
+    // Spread at each use: Sequelize writes the column name into the attribute object it is given.
     const counter = { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 0 };
     ImportBatch.init(
       {
@@ -51,11 +52,11 @@ export class ImportBatch extends Model<InferAttributes<ImportBatch>, InferCreati
         filePath: { type: DataTypes.STRING(500), allowNull: true },
         fileBytes: { type: DataTypes.BIGINT.UNSIGNED, allowNull: true },
         fileSha256: { type: DataTypes.CHAR(64), allowNull: true },
-        rowsRead: counter,
-        rowsAccepted: counter,
-        rowsRejected: counter,
-        rowsInserted: counter,
-        rowsUpdated: counter,
+        rowsRead: { ...counter },
+        rowsAccepted: { ...counter },
+        rowsRejected: { ...counter },
+        rowsInserted: { ...counter },
+        rowsUpdated: { ...counter },
         bytesDone: { type: DataTypes.BIGINT.UNSIGNED, allowNull: false, defaultValue: 0 },
         errorMessage: { type: DataTypes.STRING(1000), allowNull: true },
         userId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },

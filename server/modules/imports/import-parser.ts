@@ -4,6 +4,7 @@ import type { Info } from 'csv-parse';
 import {
   CrossRowRules,
   columnsByKind,
+  fastReviewCsvRow,
   createAggregateCsvRowSchema,
   createReviewCsvRowSchema,
   histogramColumns,
@@ -282,12 +283,20 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
   private result: ImportSummary | null = null;
   private started = false;
   private delimiter: Delimiter = ',';
+  private headerRead: HeaderMapping[] = [];
+  private readonly clock = (): Date => this.options.now;
+  private warningsSoFar: string[] = [];
 
   constructor(
     private readonly source: Readable,
     readonly kind: K,
     private readonly options: ImportParseOptions,
   ) {}
+
+  /** What has been read so far, for a caller (the preview) that stops before the end. */
+  get progress(): { delimiter: Delimiter; header: HeaderMapping[]; warnings: string[] } {
+    return { delimiter: this.delimiter, header: this.headerRead, warnings: this.warningsSoFar };
+  }
 
   get summary(): ImportSummary {
     if (!this.result) throw new Error('The import summary is available once the rows have all been read');
@@ -374,6 +383,8 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
           const mapped = mapHeader(this.kind, record);
           header = mapped.mapping;
           summary.header = header;
+          this.headerRead = header;
+          this.warningsSoFar = summary.warnings;
           summary.warnings.push(...mapped.warnings);
           textIndex = header.findIndex((h) => h.column === 'text');
           continue;
@@ -454,10 +465,11 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
         problems.push({ column: undefined, message: `column ${h.position} has no header but holds a value` });
     });
 
-    const result = schema.safeParse(cells);
-    let draft: ReviewRowDraft | AggregateRowDraft | null = null;
-    if (result.success) draft = result.data;
-    else
+    let draft: ReviewRowDraft | AggregateRowDraft | null =
+      problems.length === 0 && this.kind === 'reviews' ? fastReviewCsvRow(cells, this.clock) : null;
+    const result = draft ? null : schema.safeParse(cells);
+    if (result?.success) draft = result.data;
+    else if (result)
       for (const issue of result.error.issues) {
         const column = typeof issue.path[0] === 'string' ? issue.path[0] : undefined;
         problems.push({ column, message: issue.message + showValue(column ? cells[column] : undefined) });

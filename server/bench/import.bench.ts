@@ -1,0 +1,248 @@
+import { spawn } from 'node:child_process';
+import { mkdtemp, rm, stat } from 'node:fs/promises';
+import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import mariadb from 'mariadb';
+import type { ReviewRow } from '../../shared/schemas/import.schema';
+import { syntheticReviewRows, writeReviewCsv } from '../demo/scenario-csv';
+import { demoCategories } from '../demo/scenario';
+import { startEmbeddedMariadb } from '../db/embedded-mariadb';
+
+/*
+ * Ballast's review importer end to end (stream parse, validation, item look-up, batched upserts, progress)
+ * on a generated 1,000,000-row file, against MariaDB's own LOAD DATA LOCAL INFILE of the same file into a
+ * bare table without indexes, on the same throw-away server. The importer runs in a child process so that
+ * its peak memory is its own.
+ */
+
+const asOf = new Date('2026-11-30T00:00:00Z');
+const pieceRows = 100_000;
+const thisFile = fileURLToPath(import.meta.url);
+
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const server = createServer();
+    server.once('error', reject);
+    server.listen(0, '127.0.0.1', () => {
+      const address = server.address();
+      server.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
+    });
+  });
+}
+
+type ChildResult = {
+  seconds: number;
+  rowsRead: number;
+  rowsInserted: number;
+  status: string;
+  peakRss: number;
+  peakHeap: number;
+};
+
+/** In the child: migrate, create the demo categories, import the file, report time and peak RSS. */
+async function child(url: string, file: string): Promise<void> {
+  const { openDatabase, closeDatabase } = await import('../db/sequelize');
+  const { migrateUp } = await import('../db/migrator');
+  const { Category } = await import('../db/models');
+  const { setLogLevel } = await import('../lib/logger');
+  const { importFileNow } = await import('../modules/imports/imports.service');
+  setLogLevel('warn');
+  const sequelize = openDatabase(url);
+  await migrateUp(sequelize);
+  for (const c of demoCategories)
+    await Category.create({ slug: c.slug, name: c.name, description: c.description, settings: c.settings });
+  let peakRss = process.memoryUsage().rss;
+  let peakHeap = process.memoryUsage().heapUsed;
+  const sampler = setInterval(() => {
+    const m = process.memoryUsage();
+    peakRss = Math.max(peakRss, m.rss);
+    peakHeap = Math.max(peakHeap, m.heapUsed);
+  }, 25);
+  const started = process.hrtime.bigint();
+  const outcome = await importFileNow(file, 'reviews', 'valid_rows');
+  const seconds = Number(process.hrtime.bigint() - started) / 1e9;
+  clearInterval(sampler);
+  peakRss = Math.max(peakRss, process.memoryUsage().rss);
+  await closeDatabase();
+  const result: ChildResult = {
+    seconds,
+    rowsRead: outcome.counters.rowsRead,
+    rowsInserted: outcome.counters.rowsInserted,
+    status: outcome.status,
+    peakRss,
+    peakHeap,
+  };
+  process.stdout.write(`RESULT ${JSON.stringify(result)}\n`);
+}
+
+function runChild(url: string, file: string, nodeFlags: string[]): Promise<ChildResult> {
+  return new Promise((resolve, reject) => {
+    const proc = spawn(
+      process.execPath,
+      [...nodeFlags, '--import', 'tsx', thisFile, '--import-child', url, file],
+      {
+        stdio: ['ignore', 'pipe', 'inherit'],
+      },
+    );
+    let out = '';
+    proc.stdout.on('data', (d: Buffer) => (out += d.toString()));
+    proc.once('error', reject);
+    proc.once('exit', (code) => {
+      const line = out.split('\n').find((l) => l.startsWith('RESULT '));
+      if (code !== 0 || !line) reject(new Error(`The importer child exited with ${code}:\n${out}`));
+      else resolve(JSON.parse(line.slice(7)) as ChildResult);
+    });
+  });
+}
+
+/**
+ * The same rows again, in files of 100,000: the mariadb connector (3.0.2) garbles a single LOCAL INFILE
+ * transfer of more than about 16 MB, so MariaDB loads them one after the other and the times are added.
+ */
+async function writePieces(dir: string, rowCount: number): Promise<string[]> {
+  const files: string[] = [];
+  const rows = syntheticReviewRows(rowCount, { asOf });
+  for (let start = 0; start < rowCount; start += pieceRows) {
+    const piece: ReviewRow[] = [];
+    for (let i = 0; i < pieceRows; i++) {
+      const next = rows.next();
+      if (next.done) break;
+      piece.push(next.value);
+    }
+    const file = join(dir, `piece-${files.length}.csv`);
+    await writeReviewCsv(piece, file);
+    files.push(file);
+  }
+  return files;
+}
+
+const cappedHeapMb = 192;
+
+async function freshDatabase(url: string, name: string): Promise<string> {
+  const u = new URL(url);
+  const conn = await mariadb.createConnection({
+    host: u.hostname,
+    port: Number(u.port),
+    user: decodeURIComponent(u.username),
+    password: decodeURIComponent(u.password),
+  });
+  await conn.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
+  await conn.end();
+  u.pathname = `/${name}`;
+  return u.toString();
+}
+
+async function loadDataInfile(url: string, files: string[]): Promise<{ seconds: number; rows: number }> {
+  const u = new URL(url);
+  const options = {
+    host: u.hostname,
+    port: Number(u.port),
+    user: decodeURIComponent(u.username),
+    password: decodeURIComponent(u.password),
+    database: u.pathname.slice(1),
+  };
+  // The connector sends the file in packets that can outgrow the 16 MB default; allow them for this run.
+  const setup = await mariadb.createConnection(options);
+  await setup.query('SET GLOBAL max_allowed_packet = 1073741824');
+  await setup.end();
+  const conn = await mariadb.createConnection({
+    host: u.hostname,
+    port: Number(u.port),
+    user: decodeURIComponent(u.username),
+    password: decodeURIComponent(u.password),
+    database: u.pathname.slice(1),
+    permitLocalInfile: true,
+  });
+  try {
+    await conn.query(`CREATE TABLE bare_reviews (
+      review_id VARCHAR(128), sku VARCHAR(64), title VARCHAR(500), category VARCHAR(64), stars TINYINT,
+      reviewed_at VARCHAR(40), helpful_yes INT, helpful_no INT, reviewer_id VARCHAR(128),
+      reviewer_score DECIMAL(4,3), verified VARCHAR(5), text TEXT
+    ) ENGINE=InnoDB DEFAULT CHARSET=utf8mb4`);
+    let seconds = 0;
+    let rows = 0;
+    for (const file of files) {
+      const started = process.hrtime.bigint();
+      const result = (await conn.query(
+        `LOAD DATA LOCAL INFILE ? INTO TABLE bare_reviews CHARACTER SET utf8mb4
+         FIELDS TERMINATED BY ',' OPTIONALLY ENCLOSED BY '"' ESCAPED BY ''
+         LINES TERMINATED BY '\\n' IGNORE 1 LINES`,
+        [file],
+      )) as { affectedRows: number };
+      seconds += Number(process.hrtime.bigint() - started) / 1e9;
+      rows += Number(result.affectedRows);
+    }
+    return { seconds, rows };
+  } finally {
+    await conn.end();
+  }
+}
+
+export async function run({
+  rowCount = 1_000_000,
+  nodeFlags = [],
+}: {
+  rowCount?: number;
+  /** Extra node options for the importer process, e.g. ['--cpu-prof'] or ['--max-old-space-size=256']. */
+  nodeFlags?: string[];
+} = {}): Promise<void> {
+  const dir = await mkdtemp(join(tmpdir(), 'ballast-import-bench-'));
+  const file = join(dir, 'reviews.csv');
+  const db = await startEmbeddedMariadb({
+    dir: join(dir, 'db'),
+    port: await freePort(),
+    database: 'ballast_bench',
+  });
+  try {
+    const generated = Date.now();
+    await writeReviewCsv(syntheticReviewRows(rowCount, { asOf }), file);
+    const { size } = await stat(file);
+    console.log(
+      `generated ${rowCount.toLocaleString('en')} review rows, ${(size / 1024 / 1024).toFixed(0)} MB, in ${((Date.now() - generated) / 1000).toFixed(1)} s`,
+    );
+
+    const importer = await runChild(db.url, file, nodeFlags);
+    if (importer.status !== 'succeeded' || importer.rowsInserted !== rowCount)
+      throw new Error(`The importer did not import every row: ${JSON.stringify(importer)}`);
+    const loadData = await loadDataInfile(db.url, await writePieces(dir, rowCount));
+    const importRate = importer.rowsRead / importer.seconds;
+    const loadRate = loadData.rows / loadData.seconds;
+    console.log(
+      `Ballast importer:      ${Math.round(importRate).toLocaleString('en')} rows/s (${importer.rowsRead.toLocaleString('en')} rows in ${importer.seconds.toFixed(1)} s)`,
+    );
+    console.log(
+      `LOAD DATA LOCAL INFILE: ${Math.round(loadRate).toLocaleString('en')} rows/s (${loadData.rows.toLocaleString('en')} rows in ${loadData.seconds.toFixed(1)} s, bare table)`,
+    );
+    console.log(`ratio importer / LOAD DATA: ${(importRate / loadRate).toFixed(2)} (aim: at least 0.5)`);
+    const mb = (bytes: number) => `${(bytes / 1024 / 1024).toFixed(0)} MB`;
+    console.log(
+      `importer peak RSS: ${mb(importer.peakRss)} (aim: under 300 MB; peak JS heap ${mb(importer.peakHeap)})`,
+    );
+    // Without a cap V8 collects lazily and the heap grows with the allocation rate, not with what the
+    // importer keeps; the same import with a heap cap shows its working set.
+    const capped = await runChild(await freshDatabase(db.url, 'ballast_bench_capped'), file, [
+      ...nodeFlags,
+      `--max-old-space-size=${cappedHeapMb}`,
+    ]);
+    console.log(
+      `with --max-old-space-size=${cappedHeapMb}: ${Math.round(capped.rowsRead / capped.seconds).toLocaleString('en')} rows/s, ` +
+        `ratio ${(capped.rowsRead / capped.seconds / loadRate).toFixed(2)}, peak RSS ${mb(capped.peakRss)} (JS heap ${mb(capped.peakHeap)})`,
+    );
+  } finally {
+    await db.stop();
+    await rm(dir, { recursive: true, force: true });
+  }
+}
+
+const childAt = process.argv.indexOf('--import-child');
+if (childAt !== -1) {
+  child(process.argv[childAt + 1]!, process.argv[childAt + 2]!).then(
+    () => process.exit(0),
+    (err: unknown) => {
+      console.error(err);
+      process.exit(1);
+    },
+  );
+}

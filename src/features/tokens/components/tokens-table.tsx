@@ -1,0 +1,71 @@
+import { format } from 'date-fns';
+import { roleLabels } from '../../../../shared/auth';
+import type { ApiTokenRecord } from '../../../../shared/schemas/tokens.schema';
+import { Button } from '../../../components/ui/button';
+import { EmptyState, errorMessage } from '../../../components/ui/status';
+import { useRevokeToken } from '../api/revoke-token';
+
+const when = (iso: string | null) => (iso ? format(new Date(iso), 'd MMM yyyy HH:mm') : 'never');
+
+export function TokensTable({ tokens }: { tokens: ApiTokenRecord[] }) {
+  const revoke = useRevokeToken();
+  if (tokens.length === 0)
+    return (
+      <EmptyState title="No API tokens yet">Create one for each script or system that sends data.</EmptyState>
+    );
+  return (
+    <div className="overflow-x-auto rounded-lg border border-ink-100 bg-white">
+      {revoke.error ? (
+        <p role="alert" className="px-4 py-2 text-sm text-coral-500">
+          {errorMessage(revoke.error)}
+        </p>
+      ) : null}
+      <table className="w-full text-sm">
+        <caption className="sr-only">API tokens</caption>
+        <thead className="bg-ink-50 text-left text-ink-700">
+          <tr>
+            {['Name', 'Starts with', 'Acts as', 'Categories', 'Created', 'Last used', ''].map((h, i) => (
+              <th key={i} scope="col" className="px-4 py-2 whitespace-nowrap">
+                {h || <span className="sr-only">Actions</span>}
+              </th>
+            ))}
+          </tr>
+        </thead>
+        <tbody>
+          {tokens.map((t) => (
+            <tr key={t.id} className={`border-t border-ink-100 ${t.revokedAt ? 'text-ink-500' : ''}`}>
+              <td className="px-4 py-2 font-semibold">{t.name}</td>
+              <td className="px-4 py-2 font-mono">{t.prefix}…</td>
+              <td className="px-4 py-2">{roleLabels[t.role]}</td>
+              <td className="px-4 py-2">
+                {t.categories ? t.categories.map((c) => c.name).join(', ') : 'All'}
+              </td>
+              <td className="px-4 py-2 whitespace-nowrap">
+                {when(t.createdAt)}
+                {t.createdBy ? <div className="text-xs text-ink-500">by {t.createdBy}</div> : null}
+              </td>
+              <td className="px-4 py-2 whitespace-nowrap">{when(t.lastUsedAt)}</td>
+              <td className="px-4 py-2 text-right">
+                {t.revokedAt ? (
+                  <span className="text-xs">Revoked {when(t.revokedAt)}</span>
+                ) : (
+                  <Button
+                    variant="danger"
+                    disabled={revoke.isPending}
+                    aria-label={`Revoke ${t.name}`}
+                    onClick={() => {
+                      if (window.confirm(`Revoke “${t.name}”? Scripts using it will be refused from now on.`))
+                        revoke.mutate(t.id);
+                    }}
+                  >
+                    Revoke
+                  </Button>
+                )}
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
