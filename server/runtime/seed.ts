@@ -4,6 +4,7 @@ import { db } from '../db/sequelize';
 import { demoCategories, generateDemoScenario } from '../demo/scenario';
 import { hashPassword } from '../modules/auth/auth.service';
 import { importReviewRows } from '../modules/imports/imports.service';
+import { backfillSnapshots } from '../modules/snapshots/snapshots.service';
 
 export type DemoAccount = { role: RoleCode; email: string; name: string; password: string };
 
@@ -70,8 +71,28 @@ export async function seedDemo(
       await CategoryOwner.create({ categoryId: row.id, userId: users.get('manager')!.id });
     }
   }
-  if (options.reviews) await loadDemoReviews(log);
+  if (options.reviews) {
+    await loadDemoReviews(log);
+    await backfillDemoHistory(log);
+  }
   return true;
+}
+
+/**
+ * Computes the weekly snapshots of the demo's whole history, so its timelines are full on first start.
+ * Categories one after another: each week compares with the week before it.
+ */
+export async function backfillDemoHistory(log: (line: string) => void): Promise<number> {
+  const started = Date.now();
+  const categories = await Category.findAll({ order: [['id', 'ASC']] });
+  let taken = 0;
+  for (const [index, category] of categories.entries()) {
+    const outcomes = await backfillSnapshots({ categoryId: category.id });
+    taken += outcomes.length;
+    log(`Weekly history: ${category.name} (${index + 1} of ${categories.length}), ${outcomes.length} weeks.`);
+  }
+  log(`Computed ${taken} weekly snapshots in ${((Date.now() - started) / 1000).toFixed(1)} s.`);
+  return taken;
 }
 
 /**
