@@ -91,7 +91,14 @@ export async function getOutboxMessage(id: number): Promise<OutboxDetail> {
       .filter((h) => shown.includes(h.key))
       .map((h) => ({
         name: h.line.split(':')[0] ?? h.key,
-        value: h.line.slice(h.line.indexOf(':') + 1).trim(),
+        // The subject arrives MIME-encoded (non-ASCII middle dots); show it as people read it.
+        value:
+          h.key === 'subject' && parsed.subject
+            ? parsed.subject
+            : h.line
+                .slice(h.line.indexOf(':') + 1)
+                .replace(/\r?\n\s+/g, ' ')
+                .trim(),
       })),
     attachments: parsed.attachments.map((a, index) => ({
       index,

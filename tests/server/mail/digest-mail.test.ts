@@ -179,6 +179,11 @@ describe('digest mail through the local SMTP server', () => {
     const first = list.body.items.find((m: { subject: string }) => m.subject.includes('Portable Power'));
     const detail = await ops.get(`/api/outbox/${first.id}`).expect(200);
     expect(detail.body.attachments[0].fileName).toMatch(/^ballast-portable-power-/);
+    // Headers are shown decoded, as a person reads them, not MIME-encoded.
+    const subject = (detail.body.headers as { name: string; value: string }[]).find(
+      (h) => h.name === 'Subject',
+    );
+    expect(subject?.value).toMatch(/^Ballast · Portable Power · week /);
     const html = await ops.get(detail.body.htmlUrl).expect(200);
     expect(html.headers['content-security-policy']).toContain('sandbox');
     expect(html.headers['content-security-policy']).toContain("default-src 'none'");
