@@ -34,7 +34,6 @@ type ReviewAggregate = {
   one_recent: number;
   total_base: number;
   one_base: number;
-  [phrase: `phrase_${number}`]: number;
 };
 
 type ObservationRow = {
@@ -90,10 +89,6 @@ export async function loadCategoryEvidence(
     clusterFrom: new Date(at - settings.clusterWindowDays * DAY_MS),
     baselineFrom: new Date(at - (settings.clusterWindowDays + settings.clusterBaselineDays) * DAY_MS),
   };
-  const phraseSums = settings.clusterPhrases.map((phrase, k) => {
-    replacements[`p${k}`] = phrase;
-    return `SUM(r.stars = 1 AND r.reviewed_at > :clusterFrom AND LOCATE(:p${k}, r.body) > 0) AS phrase_${k}`;
-  });
   const scope =
     'FROM reviews r JOIN items i ON i.id = r.item_id WHERE i.category_id = :categoryId AND r.reviewed_at <= :cutoff';
 
@@ -113,11 +108,30 @@ export async function loadCategoryEvidence(
        SUM(r.reviewed_at > :clusterFrom AND r.stars = 1) AS one_recent,
        SUM(r.reviewed_at <= :clusterFrom AND r.reviewed_at > :baselineFrom) AS total_base,
        SUM(r.reviewed_at <= :clusterFrom AND r.reviewed_at > :baselineFrom AND r.stars = 1) AS one_base
-       ${phraseSums.map((s) => `, ${s}`).join('')}
      ${scope}
      GROUP BY r.item_id`,
     { replacements, type: QueryTypes.SELECT, transaction },
   );
+
+  // Only recent one-star reviews are read for their text, so the grouped pass above stays on the index.
+  const phraseCountsByItem = new Map<number, Record<string, number>>();
+  if (settings.clusterPhrases.length > 0) {
+    const phraseSums = settings.clusterPhrases.map((phrase, k) => {
+      replacements[`p${k}`] = phrase;
+      return `SUM(LOCATE(:p${k}, r.body) > 0) AS phrase_${k}`;
+    });
+    const rows = await sequelize.query<Record<string, number>>(
+      `SELECT r.item_id, ${phraseSums.join(', ')}
+       ${scope} AND r.stars = 1 AND r.reviewed_at > :clusterFrom AND r.body IS NOT NULL
+       GROUP BY r.item_id`,
+      { replacements, type: QueryTypes.SELECT, transaction },
+    );
+    for (const row of rows) {
+      const counts: Record<string, number> = {};
+      settings.clusterPhrases.forEach((phrase, k) => (counts[phrase] = num(row[`phrase_${k}`])));
+      phraseCountsByItem.set(Number(row.item_id), counts);
+    }
+  }
 
   const medians = await sequelize.query<{ item_id: number; med: number }>(
     `SELECT DISTINCT r.item_id, MEDIAN(TIMESTAMPDIFF(SECOND, r.reviewed_at, :cutoff)) OVER (PARTITION BY r.item_id) AS med
@@ -142,8 +156,8 @@ export async function loadCategoryEvidence(
     const id = Number(a.item_id);
     const best = helpfulByItem.get(id);
     const hasReviewer = a.rw !== null;
-    const phraseCounts: Record<string, number> = {};
-    settings.clusterPhrases.forEach((phrase, k) => (phraseCounts[phrase] = num(a[`phrase_${k}`])));
+    const phraseCounts =
+      phraseCountsByItem.get(id) ?? Object.fromEntries(settings.clusterPhrases.map((phrase) => [phrase, 0]));
     itemIds.push(id);
     items.push({
       sku: a.sku,
