@@ -20,7 +20,7 @@ const WEEKS = 104;
 const CONNECTIONS = 32;
 const DURATION_S = 10;
 
-function freePort(): Promise<number> {
+export function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const server = createServer();
     server.once('error', reject);
@@ -51,7 +51,10 @@ const rowColumns =
  * A synthetic 5,000-item category with 104 weekly snapshots, scored week by week with the shared engine
  * (counts grow, means wander) and written with multi-row inserts.
  */
-async function fillCategory(sequelize: ReturnType<typeof openDatabase>, categoryId: number): Promise<string> {
+export async function fillCategory(
+  sequelize: ReturnType<typeof openDatabase>,
+  categoryId: number,
+): Promise<string> {
   const rand = mulberry32(0xba11a57);
   const now = new Date();
   const itemValues = Array.from({ length: ITEMS }, (_, i) => [
@@ -171,7 +174,7 @@ async function fillCategory(sequelize: ReturnType<typeof openDatabase>, category
   return ids[Math.floor(ITEMS / 3)]!.sku;
 }
 
-async function signIn(base: string, email: string, password: string): Promise<string> {
+export async function signIn(base: string, email: string, password: string): Promise<string> {
   const cookies = new Map<string, string>();
   const keep = (res: Response) => {
     for (const line of res.headers.getSetCookie()) {

@@ -1,5 +1,7 @@
+import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { roleCodes, type RoleCode } from '../../shared/auth';
+import { tokenRoles, type CreatedToken, type TokenRole } from '../../shared/schemas/tokens.schema';
 import { apiRoutes } from '../../server/modules/registry';
 import { setupTestApp, type Agent, type TestApp } from '../helpers/test-app';
 
@@ -140,5 +142,110 @@ describe('role matrix over every registered API route', () => {
       'kettles-and-brewers',
       'portable-power',
     ]);
+  });
+});
+
+describe('role matrix over every registered API route, by API token', () => {
+  // Created here rather than in the file's beforeAll: the session matrix above calls
+  // DELETE /api/admin/tokens/4 as the administrator, and these tokens must outlive it.
+  const tokens = new Map<TokenRole, string>();
+  let revoked = '';
+  let scopedOps = '';
+
+  async function createToken(body: object): Promise<CreatedToken> {
+    const admin = agents.get('admin')!;
+    const res = await admin.post('/api/admin/tokens').set('x-csrf-token', admin.csrf).send(body).expect(201);
+    return res.body as CreatedToken;
+  }
+
+  beforeAll(async () => {
+    const owned = (await t.db.sequelize.query('SELECT id FROM categories WHERE slug = ?', {
+      replacements: [ownedSlug],
+      plain: true,
+    })) as { id: number };
+    for (const role of tokenRoles) {
+      // A manager token must name its categories: the one the demo manager owns.
+      const categoryIds = role === 'manager' ? [owned.id] : null;
+      tokens.set(role, (await createToken({ name: `Matrix ${role}`, role, categoryIds })).secret);
+    }
+    scopedOps = (await createToken({ name: 'Matrix scoped ops', role: 'ops', categoryIds: [owned.id] }))
+      .secret;
+    const gone = await createToken({ name: 'Matrix revoked', role: 'ops' });
+    const admin = agents.get('admin')!;
+    await admin.delete(`/api/admin/tokens/${gone.token.id}`).set('x-csrf-token', admin.csrf).expect(200);
+    revoked = gone.secret;
+  });
+
+  function callWithToken(secret: string, method: string, path: string, slug = ownedSlug) {
+    const req = request(t.app)[method as 'get'](fill(path, slug)).set('authorization', `Bearer ${secret}`);
+    return method === 'get' ? req : req.send({});
+  }
+
+  for (const def of apiRoutes) {
+    const allowed = expected[key(def.method, def.path)];
+    const name = key(def.method, def.path);
+    it(`${name} answers each token role as the role's session does, or 403 where tokens are refused`, async () => {
+      const tokensAllowed = def.access.kind === 'roles' && def.access.tokens === true;
+      for (const role of tokenRoles) {
+        const res = await callWithToken(tokens.get(role)!, def.method, def.path);
+        const label = `${role} token → ${name}: ${res.status}`;
+        if (allowed === 'public') expect([401, 403], label).not.toContain(res.status);
+        else if (!tokensAllowed) expect(res.status, label).toBe(403);
+        else if (allowed === 'signed-in' || allowed?.includes(role)) {
+          // The same call with the role's cookie session: a token acts as its role, no more, no less.
+          const session = await call(agents.get(role)!, def.method, fill(def.path, ownedSlug));
+          expect([401, 403], label).not.toContain(res.status);
+          expect(res.status, label).toBe(session.status);
+        } else expect(res.status, label).toBe(403);
+      }
+      if (allowed !== 'public') {
+        const res = await callWithToken(revoked, def.method, def.path);
+        expect(res.status, `revoked token → ${name}`).toBe(401);
+        expect(res.body.error.message, name).toContain('was revoked');
+      }
+    });
+  }
+
+  it('lets some routes take tokens, so the comparison above is not empty', () => {
+    const open = apiRoutes.filter((r) => r.access.kind === 'roles' && r.access.tokens === true);
+    expect(open.map((r) => key(r.method, r.path)).sort()).toEqual([
+      'POST /api/ingest/aggregates',
+      'POST /api/ingest/reviews',
+      'POST /api/score',
+    ]);
+  });
+
+  it('keeps a token limited to one category out of the others', async () => {
+    const scoped = apiRoutes.filter((r) => r.access.kind === 'roles' && r.access.category);
+    for (const def of scoped) {
+      for (const secret of [scopedOps, tokens.get('manager')!]) {
+        const foreign = await callWithToken(secret, def.method, def.path, foreignSlug);
+        expect(foreign.status, `foreign ${def.path}`).toBe(403);
+      }
+    }
+    // Ingest names the category in each row: rows for a foreign category are refused, the rest written.
+    const row = (reviewId: string, category: string, sku: string) => ({
+      reviewId,
+      sku,
+      title: 'Matrix Scope Item',
+      category,
+      stars: 4,
+      reviewedAt: '2026-06-01',
+    });
+    for (const secret of [scopedOps, tokens.get('manager')!]) {
+      const res = await request(t.app)
+        .post('/api/ingest/reviews')
+        .set('authorization', `Bearer ${secret}`)
+        .send({
+          mode: 'valid_rows',
+          rows: [
+            row(`mx-own-${secret.slice(5, 12)}`, ownedSlug, 'KE-MX1'),
+            row(`mx-far-${secret.slice(5, 12)}`, foreignSlug, 'DE-MX1'),
+          ],
+        })
+        .expect(200);
+      expect(res.body).toMatchObject({ rowsRead: 2, rowsAccepted: 1, rowsRejected: 1 });
+      expect(res.body.errors[0].reason).toBe(`not one of your categories: ${foreignSlug}`);
+    }
   });
 });
