@@ -240,7 +240,7 @@ const cellBoolean = (column: string) =>
       .string()
       .trim()
       .toLowerCase()
-      .refine((value) => value in booleanWords, {
+      .refine((value) => Object.hasOwn(booleanWords, value), {
         error: `${column} must be true/false, yes/no or 1/0`,
       })
       .transform((value) => booleanWords[value] ?? null)

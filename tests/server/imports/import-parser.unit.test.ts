@@ -173,6 +173,12 @@ describe('review CSV: row rules', () => {
     expect(result.rows[0]?.row.verified).toBe(value);
   });
 
+  it.each(['maybe', 'constructor', 'toString'])('rejects verified %j', async (word) => {
+    const result = await reviews([good('r1').replace(',true,', `,${word},`)]);
+    expect(result.rows).toEqual([]);
+    expect(result.errors[0]).toMatchObject({ line: 2, column: 'verified' });
+  });
+
   it('rejects a missing sku and names the column', async () => {
     const result = await reviews([good('r1', { sku: '' })]);
     expect(result.errors[0]).toMatchObject({ line: 2, column: 'sku', reason: 'sku is missing' });
