@@ -1,6 +1,5 @@
 import { spawn } from 'node:child_process';
 import { mkdtemp, rm, stat } from 'node:fs/promises';
-import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -9,6 +8,7 @@ import type { ReviewRow } from '../../shared/schemas/import.schema';
 import { syntheticReviewRows, writeReviewCsv } from '../demo/scenario-csv';
 import { demoCategories } from '../demo/scenario';
 import { startEmbeddedMariadb } from '../db/embedded-mariadb';
+import { freePort } from '../lib/free-port';
 
 /*
  * Ballast's review importer end to end (stream parse, validation, item look-up, batched upserts, progress)
@@ -20,17 +20,6 @@ import { startEmbeddedMariadb } from '../db/embedded-mariadb';
 const asOf = new Date('2026-11-30T00:00:00Z');
 const pieceRows = 100_000;
 const thisFile = fileURLToPath(import.meta.url);
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once('error', reject);
-    server.listen(0, '127.0.0.1', () => {
-      const address = server.address();
-      server.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
-    });
-  });
-}
 
 type ChildResult = {
   seconds: number;

@@ -11,7 +11,8 @@ import { Category, User } from '../db/models';
 import { closeDatabase, openDatabase } from '../db/sequelize';
 import { setLogLevel } from '../lib/logger';
 import { hashPassword } from '../modules/auth/auth.service';
-import { fillCategory, freePort, signIn } from './standings.bench';
+import { freePort } from '../lib/free-port';
+import { fillCategory, signIn } from './standings.bench';
 
 const CONNECTIONS = 50;
 const DURATION_S = 30;

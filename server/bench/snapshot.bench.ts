@@ -1,5 +1,4 @@
 import { rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { lastCompletedIsoWeek, shiftIsoWeek } from '../../shared/iso-week';
@@ -8,20 +7,12 @@ import { migrateUp } from '../db/migrator';
 import { closeDatabase, openDatabase } from '../db/sequelize';
 import { setLogLevel } from '../lib/logger';
 import { backfillSnapshots, takeSnapshot } from '../modules/snapshots/snapshots.service';
+import { freePort } from '../lib/free-port';
 
 const REVIEWS = 1_000_000;
 const ITEMS = 20_000;
 const CATEGORIES = 10;
 const NOW = new Date('2026-11-30T06:00:00Z');
-
-function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const server = createServer().listen(0, '127.0.0.1', () => {
-      const address = server.address();
-      server.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
-    });
-  });
-}
 
 async function timed<T>(work: () => Promise<T>): Promise<[number, T]> {
   const started = performance.now();

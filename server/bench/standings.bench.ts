@@ -1,6 +1,5 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import type { Server } from 'node:http';
-import { createServer } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import autocannon from 'autocannon';
@@ -14,22 +13,12 @@ import { Category, User } from '../db/models';
 import { closeDatabase, openDatabase } from '../db/sequelize';
 import { setLogLevel } from '../lib/logger';
 import { hashPassword } from '../modules/auth/auth.service';
+import { freePort } from '../lib/free-port';
 
 const ITEMS = 5000;
 const WEEKS = 104;
 const CONNECTIONS = 32;
 const DURATION_S = 10;
-
-export function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once('error', reject);
-    server.listen(0, '127.0.0.1', () => {
-      const address = server.address();
-      server.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
-    });
-  });
-}
 
 function mulberry32(seed: number): () => number {
   let a = seed >>> 0;

@@ -1,25 +1,14 @@
 import { rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import type { TestProject } from 'vitest/node';
 import { startEmbeddedMariadb } from '../../server/db/embedded-mariadb';
+import { freePort } from '../../server/lib/free-port';
 
 declare module 'vitest' {
   export interface ProvidedContext {
     dbServerUrl: string;
   }
-}
-
-export function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once('error', reject);
-    server.listen(0, '127.0.0.1', () => {
-      const address = server.address();
-      server.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
-    });
-  });
 }
 
 /** A throw-away MariaDB for one test run: own data directory and port, removed afterwards. */

@@ -2,7 +2,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
 import { rootDir } from '../../server/config/env';
-import { freePort } from './global-setup';
+import { freePort } from '../../server/lib/free-port';
 
 export type ServerProcess = {
   url: string;

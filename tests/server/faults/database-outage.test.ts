@@ -4,7 +4,7 @@ import path from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startEmbeddedMariadb, type EmbeddedMariadb } from '../../../server/db/embedded-mariadb';
-import { freePort } from '../../helpers/global-setup';
+import { freePort } from '../../../server/lib/free-port';
 import { startServerProcess, type ServerProcess } from '../../helpers/server-process';
 
 /** Ballast as a real process on a MariaDB of its own that this test stops and starts again. */
