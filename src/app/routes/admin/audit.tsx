@@ -1,7 +1,7 @@
 import { format } from 'date-fns';
 import { useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { RouteError } from '../../../components/errors/route-error';
-import { Button } from '../../../components/ui/button';
+import { NewerOlderPager } from '../../../components/ui/newer-older-pager';
 import { PageHeader } from '../../../components/ui/page-header';
 import { EmptyState, ErrorPanel, Loading } from '../../../components/ui/status';
 import { auditQueryOptions, useAudit, type AuditFilter } from '../../../features/admin/api/get-audit';
@@ -107,25 +107,7 @@ export function Component() {
           </table>
         </div>
       ) : null}
-      <nav aria-label="Pages" className="mt-4 flex items-center gap-3 text-sm">
-        <Button
-          variant="secondary"
-          disabled={filter.page <= 1}
-          onClick={() => setParam('page', String(filter.page - 1))}
-        >
-          Newer
-        </Button>
-        <span>
-          Page {filter.page} of {pages}
-        </span>
-        <Button
-          variant="secondary"
-          disabled={filter.page >= pages}
-          onClick={() => setParam('page', String(filter.page + 1))}
-        >
-          Older
-        </Button>
-      </nav>
+      <NewerOlderPager page={filter.page} pages={pages} onPage={(page) => setParam('page', String(page))} />
     </>
   );
 }

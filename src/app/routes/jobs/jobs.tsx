@@ -2,7 +2,7 @@ import { useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { jobStatuses, jobTriggerLabels, type JobStatus } from '../../../../shared/schemas/jobs.schema';
 import { RouteError } from '../../../components/errors/route-error';
 import { WidgetBoundary } from '../../../components/errors/widget-boundary';
-import { Button } from '../../../components/ui/button';
+import { NewerOlderPager } from '../../../components/ui/newer-older-pager';
 import { PageHeader } from '../../../components/ui/page-header';
 import { EmptyState, ErrorPanel, Loading } from '../../../components/ui/status';
 import { categoriesQueryOptions, useCategories } from '../../../features/categories/api/get-categories';
@@ -191,25 +191,7 @@ export function Component() {
           </div>
         ) : null}
       </WidgetBoundary>
-      <nav aria-label="Pages" className="mt-4 flex items-center gap-3 text-sm">
-        <Button
-          variant="secondary"
-          disabled={filter.page <= 1}
-          onClick={() => setParam('page', String(filter.page - 1))}
-        >
-          Newer
-        </Button>
-        <span>
-          Page {filter.page} of {pages}
-        </span>
-        <Button
-          variant="secondary"
-          disabled={filter.page >= pages}
-          onClick={() => setParam('page', String(filter.page + 1))}
-        >
-          Older
-        </Button>
-      </nav>
+      <NewerOlderPager page={filter.page} pages={pages} onPage={(page) => setParam('page', String(page))} />
     </>
   );
 }
