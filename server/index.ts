@@ -10,6 +10,7 @@ import { startLocalSmtpServer, type LocalSmtpServer } from './modules/mail/local
 import { createMailTransport, startMailWorker } from './modules/mail/mail.service';
 import { ensureClientBuilt } from './runtime/client-build';
 import { prepareDatabase } from './runtime/database';
+import { limitHeapGrowth } from './runtime/heap';
 import { demoAccounts, seedDemo } from './runtime/seed';
 
 const say = (line: string): void => console.log(`[ballast] ${line}`);
@@ -17,6 +18,7 @@ const say = (line: string): void => console.log(`[ballast] ${line}`);
 async function main(): Promise<void> {
   const config = loadConfig();
   setLogLevel(config.logLevel);
+  limitHeapGrowth(config.heapGrowthPercent);
   const { sequelize, embedded } = await prepareDatabase(config, say);
   const demo = config.demo ? await seedDemo(say, { reviews: true }) : false;
   await resumeImports(say);

@@ -177,6 +177,8 @@ export async function run(): Promise<void> {
       throw new Error(`${ingestPath} answered ${warm.status}: ${JSON.stringify(warmBody)}`);
     await sleep(2000);
     const before = rssMb(ballast.pid!);
+    let peak = before;
+    const sampler = setInterval(() => (peak = Math.max(peak, rssMb(ballast!.pid!))), 250);
 
     const results: Figures[] = [];
     const rssAfter: string[] = [];
@@ -225,11 +227,13 @@ export async function run(): Promise<void> {
       ),
     );
     note('ingest');
+    clearInterval(sampler);
     await sleep(5000);
     const after = rssMb(ballast.pid!);
 
     console.log(
-      `load: autocannon, ${CONNECTIONS} connections, ${DURATION_S} s each, loopback, one Ballast process`,
+      `load: autocannon, ${CONNECTIONS} connections, ${DURATION_S} s each, loopback, one Ballast process ` +
+        `(heap growth ${process.env.BALLAST_HEAP_GROWTH_PERCENT ?? 'default 50'}%)`,
     );
     for (const f of results) {
       console.log(
@@ -243,7 +247,9 @@ export async function run(): Promise<void> {
     await closeDatabase();
     console.log(`load: ${ingested!.n} reviews written by the ingest run (${counter} request bodies built)`);
     const change = (after - before) / before;
-    console.log(`load: server RSS after each run: ${rssAfter.join(', ')}`);
+    console.log(
+      `load: server RSS after each run: ${rssAfter.join(', ')}; highest during the runs ${peak.toFixed(0)} MB`,
+    );
     console.log(
       `load: server RSS ${before.toFixed(0)} MB before, ${after.toFixed(0)} MB after (${change >= 0 ? '+' : ''}${(change * 100).toFixed(0)}%): ` +
         (Math.abs(change) <= 0.2 ? 'within 20%' : 'NOT within 20%'),

@@ -21,6 +21,7 @@ const envSchema = z.object({
   BALLAST_DEMO: bool.optional(),
   BALLAST_IMPORT_MAX_MB: z.coerce.number().int().min(1).max(10_240).default(250),
   BALLAST_SCHEDULER: bool.default(true),
+  BALLAST_HEAP_GROWTH_PERCENT: z.coerce.number().int().min(0).max(1000).default(50),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   SMTP_HOST: z.string().min(1).optional(),
   SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(587),
@@ -53,6 +54,8 @@ export type Config = {
   scheduler: boolean;
   /** Largest import file accepted, in bytes. */
   importMaxBytes: number;
+  /** How far V8 lets the heap grow past its live size before a full collection; 0 keeps V8's own rule. */
+  heapGrowthPercent: number;
   mail: {
     /** A real SMTP server; null means Ballast's own local SMTP server on loopback (BALLAST_SMTP_PORT). */
     smtp: {
@@ -114,6 +117,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     digestPaper: e.DIGEST_PAPER.toUpperCase() as 'A4' | 'LETTER',
     demo: e.BALLAST_DEMO ?? !e.DATABASE_URL,
     importMaxBytes: e.BALLAST_IMPORT_MAX_MB * 1024 * 1024,
+    heapGrowthPercent: e.BALLAST_HEAP_GROWTH_PERCENT,
     rootDir,
   };
 }
