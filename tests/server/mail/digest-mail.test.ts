@@ -30,6 +30,8 @@ const manager = demoAccounts.find((a) => a.role === 'manager')!.email;
 const exec = demoAccounts.find((a) => a.role === 'exec')!.email;
 const hostile = '<script>alert(1)</script>';
 const longTitle = `Marathon ${'endurance '.repeat(40)}`.slice(0, 300);
+/** Markup, quotes and a header break in a category name: all must stay text in subject, HTML and PDF. */
+const hostileCategory = '<img src=x onerror=alert(2)>Garden "Tools" & Co\r\nBcc: intruder@example.test';
 
 let t: TestApp;
 let smtp: LocalSmtpServer;
@@ -54,6 +56,7 @@ beforeAll(async () => {
   await Item.update({ title: hostile }, { where: { id: leaders.map((l) => l.itemId) } });
   const top = (await SnapshotRow.findOne({ where: { snapshotId: snapshot.id, smoothedRank: 1 } }))!;
   await Item.update({ title: longTitle }, { where: { id: top.itemId } });
+  await Category.update({ name: hostileCategory }, { where: { slug: 'garden-tools' } });
 }, 180_000);
 afterAll(async () => {
   await smtp.close();
@@ -288,5 +291,44 @@ describe('GET digest PDFs by role', () => {
       kind: 'category',
     });
     expect(res.body[0].deliveries.sent).toBeGreaterThan(0);
+  });
+});
+
+describe('a hostile category name', () => {
+  it('stays text in the subject, the HTML and text parts and the PDF, and adds no header', async () => {
+    const garden = (await Category.findOne({ where: { slug: 'garden-tools' } }))!;
+    const schedule = await ReportSchedule.create({
+      name: 'Garden digest',
+      cron: '0 6 * * 1',
+      timeZone: 'Europe/London',
+      categoryIds: [garden.id],
+      recipients: ['garden.reader@example.test'],
+      produce: 'snapshot_digest',
+      lastDueAt: null,
+      createdBy: null,
+    });
+    await produceDigests({
+      isoWeek: week,
+      categoryIds: [garden.id],
+      scheduleId: schedule.id,
+      now: testDemoAsOf,
+    });
+    await processDueDeliveries({ transport: transport(), config });
+    const mails = await received();
+    const mail = mails.find((m) => m.row.envelopeTo.includes('garden.reader@example.test'))!.mail;
+    expect(mails.some((m) => m.row.envelopeTo.includes('intruder@example.test'))).toBe(false);
+    expect(mail.bcc).toBeUndefined();
+    expect(mail.headers.has('bcc')).toBe(false);
+    expect(mail.subject).toContain('<img src=x onerror=alert(2)>Garden "Tools" & Co');
+    expect(mail.text).toContain('<img src=x onerror=alert(2)>Garden "Tools" & Co');
+    expect(mail.html).toContain(
+      '&lt;img src&#x3D;x onerror&#x3D;alert(2)&gt;Garden &quot;Tools&quot; &amp; Co',
+    );
+    expect(mail.html).not.toMatch(/<img[^>]*onerror/i);
+    const pdfText = (await pdfPages(mail.attachments[0]!.content)).join('\n');
+    expect(pdfText).toContain('<img src=x onerror=alert(2)>Garden "Tools" & Co');
+    // The executive's portfolio mail lists every category by name, this one escaped as well.
+    const portfolio = mails.find((m) => m.row.envelopeTo[0] === exec)!.mail;
+    expect(portfolio.html).not.toMatch(/<img[^>]*onerror/i);
   });
 });
