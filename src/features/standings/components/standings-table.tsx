@@ -148,7 +148,7 @@ export function StandingsTable({
     <div className="overflow-x-auto rounded-lg border border-ink-100 bg-white">
       <table className="w-full min-w-[60rem] text-sm">
         <caption className="sr-only">{caption}</caption>
-        <thead className="sticky top-0 bg-ink-50 text-left text-xs uppercase tracking-wide text-ink-700">
+        <thead className="sticky top-0 bg-ink-50 text-left text-xs uppercase text-ink-700">
           {table.getHeaderGroups().map((group) => (
             <tr key={group.id}>
               {group.headers.map((header) => {
@@ -170,7 +170,7 @@ export function StandingsTable({
                           ? 'none'
                           : undefined
                     }
-                    className={`px-3 py-2 font-semibold ${className.includes('text-right') ? 'text-right' : ''}`}
+                    className={`px-2 py-2 font-semibold ${className.includes('text-right') ? 'text-right' : ''}`}
                   >
                     {sortable.has(id) ? (
                       <button
@@ -216,7 +216,7 @@ export function StandingsTable({
               {row.getVisibleCells().map((cell) => (
                 <td
                   key={cell.id}
-                  className={`px-3 py-2 align-top ${(cell.column.columnDef.meta as { className?: string } | undefined)?.className ?? ''}`}
+                  className={`px-2 py-2 align-top ${(cell.column.columnDef.meta as { className?: string } | undefined)?.className ?? ''}`}
                 >
                   {flexRender(cell.column.columnDef.cell, cell.getContext())}
                 </td>
