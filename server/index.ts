@@ -5,7 +5,7 @@ import { createApp } from './app';
 import { loadConfig } from './config/env';
 import { closeDatabase } from './db/sequelize';
 import { logger, setLogLevel } from './lib/logger';
-import { resumeImports } from './modules/imports/imports.service';
+import { watchImports } from './modules/imports/imports.service';
 import { startLocalSmtpServer, type LocalSmtpServer } from './modules/mail/local-smtp';
 import { createMailTransport, startMailWorker } from './modules/mail/mail.service';
 import { ensureClientBuilt } from './runtime/client-build';
@@ -21,7 +21,7 @@ async function main(): Promise<void> {
   limitHeapGrowth(config.heapGrowthPercent);
   const { sequelize, embedded } = await prepareDatabase(config, say);
   const demo = config.demo ? await seedDemo(say, { reviews: true }) : false;
-  await resumeImports(say);
+  const stopImportWatch = await watchImports(say);
   if (!process.argv.includes('--no-build')) ensureClientBuilt(config.rootDir, say);
 
   const app = createApp({ config, sequelize });
@@ -63,6 +63,7 @@ async function main(): Promise<void> {
           : 'The running job did not finish in time; its transaction rolls back.',
       );
     }
+    stopImportWatch();
     await mailWorker.stop();
     await localSmtp?.close();
     await new Promise<void>((resolve) => {

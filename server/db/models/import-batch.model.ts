@@ -31,6 +31,9 @@ export class ImportBatch extends Model<InferAttributes<ImportBatch>, InferCreati
   declare actorEmail: string | null;
   declare startedAt: Date | null;
   declare finishedAt: Date | null;
+  /** The server process running or about to run this import; null once it has ended. */
+  declare leaseOwner: CreationOptional<string | null>;
+  declare leaseUntil: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -64,6 +67,8 @@ export class ImportBatch extends Model<InferAttributes<ImportBatch>, InferCreati
         actorEmail: { type: DataTypes.STRING(254), allowNull: true },
         startedAt: { type: DataTypes.DATE, allowNull: true },
         finishedAt: { type: DataTypes.DATE, allowNull: true },
+        leaseOwner: { type: DataTypes.STRING(120), allowNull: true },
+        leaseUntil: { type: DataTypes.DATE(3), allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

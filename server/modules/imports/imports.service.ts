@@ -28,6 +28,7 @@ import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
 import { logger } from '../../lib/logger';
 import { rejectedRowsCsv } from './csv-safe';
+import { claimImport, importWorkerId, keepLeases, newLease, releaseImport } from './import-leases';
 import { ImportFileError, parseImport, type Delimiter, type ParsedRecord } from './import-parser';
 import {
   fromArray,
@@ -260,15 +261,20 @@ async function scopeOf(batch: ImportBatch): Promise<number[] | null> {
 
 let queue: Promise<void> = Promise.resolve();
 let pending = 0;
+/** Imports queued or running in this process. */
+const inThisProcess = new Set<number>();
 
 /** Imports run one at a time in the server process, in the order they were started. */
 function enqueue(batchId: number): void {
   pending++;
+  inThisProcess.add(batchId);
+  keepLeases(() => pending > 0);
   queue = queue
     .then(() => runUploadBatch(batchId))
     .catch((err: unknown) => logger.error({ err, batchId }, 'import failed'))
     .finally(() => {
       pending--;
+      inThisProcess.delete(batchId);
     });
 }
 
@@ -278,6 +284,8 @@ export async function importsIdle(): Promise<void> {
 }
 
 async function runUploadBatch(batchId: number): Promise<void> {
+  // Another server may have taken the import over while this one was busy (its lease ran out).
+  if (!(await claimImport(batchId))) return;
   const batch = await ImportBatch.findByPk(batchId);
   if (!batch || (batch.status !== 'queued' && batch.status !== 'running')) return;
   const file = batch.filePath;
@@ -326,6 +334,7 @@ async function runUploadBatch(batchId: number): Promise<void> {
     );
   } finally {
     await rm(file, { force: true });
+    await releaseImport(batchId);
   }
 }
 
@@ -359,23 +368,26 @@ export async function startUpload(
     actorEmail: actor.email,
     startedAt: null,
     finishedAt: null,
+    ...newLease(),
   });
   enqueue(batch.id);
   return getImport(actor, batch.id);
 }
 
 /**
- * On start: imports left queued or running by a stopped server are picked up again when their upload is
- * still on disk ("valid rows" continue after the last committed chunk, "all or nothing" start over, since
- * their transaction was rolled back); without the file they are marked failed with the reason.
+ * Imports left queued or running by a stopped server are picked up again when their upload is still on
+ * disk ("valid rows" continue after the last committed chunk, "all or nothing" start over, since their
+ * transaction was rolled back); without the file they are marked failed with the reason. An import whose
+ * server is still alive (its lease is current) is left to that server. Runs at start and every few minutes.
  */
-export async function resumeImports(log: (line: string) => void): Promise<number> {
+export async function resumeImports(log: (line: string) => void, owner = importWorkerId): Promise<number> {
   const left = await ImportBatch.findAll({
     where: { status: { [Op.in]: ['queued', 'running'] } },
     order: [['id', 'ASC']],
   });
   let resumed = 0;
   for (const batch of left) {
+    if (inThisProcess.has(batch.id) || !(await claimImport(batch.id, owner))) continue;
     const present = batch.filePath
       ? await stat(batch.filePath).then(
           () => true,
@@ -388,6 +400,8 @@ export async function resumeImports(log: (line: string) => void): Promise<number
       continue;
     }
     await batch.update({
+      leaseOwner: null,
+      leaseUntil: null,
       status: 'failed',
       finishedAt: new Date(),
       errorMessage:
@@ -399,6 +413,21 @@ export async function resumeImports(log: (line: string) => void): Promise<number
   }
   if (resumed > 0) log(`Resuming ${resumed} import(s) interrupted by the last stop.`);
   return resumed;
+}
+
+const sweepEveryMs = 2 * 60_000;
+
+/**
+ * Resumes interrupted imports now, then looks again every two minutes, so that an import whose server
+ * stopped for good is taken up (or failed with the reason) by a server that is still running.
+ */
+export async function watchImports(log: (line: string) => void): Promise<() => void> {
+  await resumeImports(log);
+  const timer = setInterval(() => {
+    resumeImports(log).catch((err: unknown) => logger.warn({ err }, 'import sweep failed'));
+  }, sweepEveryMs);
+  timer.unref();
+  return () => clearInterval(timer);
 }
 
 // ------------------------------------------------------------------ ingest API and demo

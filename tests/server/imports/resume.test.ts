@@ -10,6 +10,7 @@ import {
   importsIdle,
   resumeImports,
 } from '../../../server/modules/imports/imports.service';
+import { claimImport } from '../../../server/modules/imports/import-leases';
 import { chunkRows } from '../../../server/modules/imports/imports.writer';
 import { setupTestApp, type TestApp } from '../../helpers/test-app';
 
@@ -114,5 +115,49 @@ describe('resuming imports after a stop', () => {
     await batch.reload();
     expect(batch.status).toBe('failed');
     expect(batch.errorMessage).toContain('its file is no longer there');
+  });
+
+  it('leaves an import to the live server holding its lease, and takes it up once that lease has run out', async () => {
+    const batch = await interruptedBatch('valid_rows', 0);
+    const other = 'another-app-server:4242:ab12cd34';
+    await batch.update({ leaseOwner: other, leaseUntil: new Date(Date.now() + 60_000) });
+    expect(await resumeImports(() => {})).toBe(0);
+    await batch.reload();
+    expect(batch).toMatchObject({ status: 'running', leaseOwner: other, errorMessage: null });
+
+    // That server stopped: its lease is not renewed and runs out.
+    await batch.update({ leaseUntil: new Date(Date.now() - 1_000) });
+    expect(await resumeImports(() => {})).toBe(1);
+    await importsIdle();
+    await batch.reload();
+    expect(batch).toMatchObject({ status: 'succeeded', rowsRead: total, leaseOwner: null, leaseUntil: null });
+  });
+
+  it('fails an import whose upload is on another server only after that server has stopped', async () => {
+    const batch = await interruptedBatch('valid_rows', 0);
+    await rm(batch.filePath!, { force: true });
+    await batch.update({
+      leaseOwner: 'another-app-server:7:ffff0000',
+      leaseUntil: new Date(Date.now() + 60_000),
+    });
+    await resumeImports(() => {});
+    expect((await batch.reload()).status).toBe('running');
+    await batch.update({ leaseUntil: new Date(Date.now() - 1_000) });
+    await resumeImports(() => {});
+    expect((await batch.reload()).status).toBe('failed');
+  });
+
+  it('gives an expired import to exactly one of two servers claiming it at once', async () => {
+    const batch = await interruptedBatch('valid_rows', 0);
+    await batch.update({ leaseOwner: 'gone-server:1:00000000', leaseUntil: new Date(Date.now() - 1_000) });
+    const won = await Promise.all([
+      claimImport(batch.id, 'server-a:1:aaaa'),
+      claimImport(batch.id, 'server-b:2:bbbb'),
+    ]);
+    expect(won.filter(Boolean)).toHaveLength(1);
+    await batch.reload();
+    expect(batch.leaseOwner).toBe(won[0] ? 'server-a:1:aaaa' : 'server-b:2:bbbb');
+    await batch.update({ status: 'failed', leaseOwner: null, leaseUntil: null });
+    await rm(batch.filePath!, { force: true });
   });
 });
