@@ -43,7 +43,7 @@ export const queryKeys = {
   },
   portfolio: {
     all: ['portfolio'] as const,
-    list: () => ['portfolio', 'list'] as const,
+    list: (week?: string) => ['portfolio', 'list', { week: week ?? null }] as const,
   },
   standings: {
     all: ['standings'] as const,

@@ -41,10 +41,12 @@ export const standingsRoutes = [
     method: 'get',
     path: '/api/portfolio',
     tag,
-    summary: "Every category the caller may see with its latest week's figures and their recent trend",
+    summary:
+      "Every category the caller may see with its latest week's figures (or those of `week`) and their recent trend",
     access: access.signedIn,
+    query: weekQuerySchema,
     response: portfolioSchema,
-    handler: (req) => getPortfolio(req.actor!),
+    handler: (req, _res, { query }) => getPortfolio(req.actor!, query.week),
   }),
   route({
     method: 'get',

@@ -69,8 +69,11 @@ function parseParams(raw: unknown): ResolvedParameters {
   return (typeof raw === 'string' ? JSON.parse(raw) : raw) as ResolvedParameters;
 }
 
-/** Every category the caller may see, with its latest week's figures and the weeks before it. */
-export async function getPortfolio(actor: Actor): Promise<PortfolioEntry[]> {
+/**
+ * Every category the caller may see, with its latest week's figures and the weeks before it; with
+ * `week`, as of that week (the digest mail of a past week links here).
+ */
+export async function getPortfolio(actor: Actor, week?: string): Promise<PortfolioEntry[]> {
   const categories = await Category.findAll({
     where: actor.categoryIds ? { id: actor.categoryIds } : {},
     attributes: ['id', 'slug', 'name', 'description'],
@@ -80,10 +83,10 @@ export async function getPortfolio(actor: Actor): Promise<PortfolioEntry[]> {
   const rows = await db().query<SnapshotFigureRow>(
     `SELECT * FROM (
        SELECT ${figureColumns}, ROW_NUMBER() OVER (PARTITION BY s.category_id ORDER BY s.iso_week DESC) AS place
-       FROM snapshots s WHERE s.category_id IN (:ids)
+       FROM snapshots s WHERE s.category_id IN (:ids) ${week ? 'AND s.iso_week <= :week' : ''}
      ) s WHERE s.place <= :weeks ORDER BY s.category_id, s.iso_week`,
     {
-      replacements: { ids: categories.map((c) => c.id), weeks: portfolioTrendWeeks },
+      replacements: { ids: categories.map((c) => c.id), weeks: portfolioTrendWeeks, week: week ?? null },
       type: QueryTypes.SELECT,
     },
   );

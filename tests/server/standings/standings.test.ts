@@ -90,6 +90,21 @@ describe('GET /api/portfolio', () => {
     const res = await manager.get('/api/portfolio').expect(200);
     expect((res.body as PortfolioEntry[]).map((e) => e.slug).sort()).toEqual([kettles, 'portable-power']);
   });
+
+  it('shows every category as of a past week when asked (the link of a past portfolio digest)', async () => {
+    const stored = await snapshotsOf(packs);
+    const past = stored.at(-3)!.iso_week;
+    const res = await exec.get(`/api/portfolio?week=${past}`).expect(200);
+    for (const entry of res.body as PortfolioEntry[]) {
+      expect(entry.latest!.isoWeek).toBe(past);
+      expect(entry.trend.at(-1)!.isoWeek).toBe(past);
+      expect(entry.trend.every((w) => w.isoWeek <= past)).toBe(true);
+    }
+    const packsEntry = (res.body as PortfolioEntry[]).find((e) => e.slug === packs)!;
+    expect(packsEntry.latest!.kendallTauB).toBeCloseTo(Number(stored.at(-3)!.kendall_tau_b), 12);
+    const refused = await exec.get('/api/portfolio?week=last-week').expect(400);
+    expect(JSON.stringify(refused.body.error)).toContain('ISO week');
+  });
 });
 
 describe('GET /api/categories/:slug/standings', () => {

@@ -1,3 +1,4 @@
+import { Link, useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { RouteError } from '../../../components/errors/route-error';
 import { WidgetBoundary } from '../../../components/errors/widget-boundary';
 import { Caution } from '../../../components/ui/caution';
@@ -8,17 +9,24 @@ import { portfolioQueryOptions, usePortfolio } from '../../../features/portfolio
 import { PortfolioCard } from '../../../features/portfolio/components/portfolio-card';
 import { queryClient } from '../../../lib/query-client';
 
-export async function loader() {
+/** `?week=2026-W47` (the link in a past week's portfolio digest) shows every category as of that week. */
+function weekFrom(search: URLSearchParams): string | undefined {
+  return search.get('week') ?? undefined;
+}
+
+export async function loader({ request }: LoaderFunctionArgs) {
   await Promise.all([
     queryClient.ensureQueryData(meQueryOptions()),
-    queryClient.ensureQueryData(portfolioQueryOptions()),
+    queryClient.ensureQueryData(portfolioQueryOptions(weekFrom(new URL(request.url).searchParams))),
   ]);
   return null;
 }
 
 export function Component() {
   const { data: me } = useMe();
-  const portfolio = usePortfolio();
+  const [search] = useSearchParams();
+  const week = weekFrom(search);
+  const portfolio = usePortfolio(week);
   const isManager = me?.role === 'manager';
   const latestWeek = portfolio.data
     ?.map((e) => e.latest?.isoWeek)
@@ -31,9 +39,19 @@ export function Component() {
       <PageHeader
         title={isManager ? 'My categories' : 'Overview'}
         lead={
-          isManager
-            ? 'The categories you own, as of their latest weekly snapshot. Open one to see its standings and tune its scoring.'
-            : `Every category as of its latest weekly snapshot${latestWeek ? ` (${latestWeek})` : ''}. Lines show the last twelve weeks.`
+          week ? (
+            <>
+              {isManager ? 'The categories you own' : 'Every category'} as of week {week}: each card shows
+              that week&apos;s snapshot (or the one before it) and the twelve weeks up to it.{' '}
+              <Link to="/" className="font-semibold text-brass-700 underline">
+                Show the latest week
+              </Link>
+            </>
+          ) : isManager ? (
+            'The categories you own, as of their latest weekly snapshot. Open one to see its standings and tune its scoring.'
+          ) : (
+            `Every category as of its latest weekly snapshot${latestWeek ? ` (${latestWeek})` : ''}. Lines show the last twelve weeks.`
+          )
         }
       />
       {portfolio.isPending ? <Loading label="Loading the portfolio…" /> : null}
@@ -52,7 +70,7 @@ export function Component() {
           <ul className="grid gap-4 md:grid-cols-2 xl:grid-cols-3" aria-label="Categories">
             {portfolio.data.map((entry) => (
               <li key={entry.slug} className="relative">
-                <PortfolioCard entry={entry} />
+                <PortfolioCard entry={entry} asOfWeek={week} />
               </li>
             ))}
           </ul>

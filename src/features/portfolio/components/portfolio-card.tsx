@@ -35,8 +35,8 @@ function Figure({
   );
 }
 
-/** One category's latest week at a glance, with where each figure has been heading. */
-export function PortfolioCard({ entry }: { entry: PortfolioEntry }) {
+/** One category's latest week (or the week asked for) at a glance, with where each figure has been heading. */
+export function PortfolioCard({ entry, asOfWeek }: { entry: PortfolioEntry; asOfWeek?: string }) {
   const latest = entry.latest;
   const trend = entry.trend;
   return (
@@ -44,7 +44,7 @@ export function PortfolioCard({ entry }: { entry: PortfolioEntry }) {
       <header className="px-5 pt-4">
         <h2 className="text-lg font-bold text-ink-900">
           <Link
-            to={`/categories/${entry.slug}`}
+            to={`/categories/${entry.slug}${asOfWeek && latest ? `?week=${latest.isoWeek}` : ''}`}
             className="after:absolute after:inset-0 focus-visible:outline-none"
             aria-describedby={`week-${entry.slug}`}
           >
