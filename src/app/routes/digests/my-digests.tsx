@@ -25,7 +25,9 @@ export function Component() {
         {(digests.data ?? []).map((d) => (
           <li key={d.target} className="flex items-center justify-between gap-4 px-4 py-3">
             <div>
-              <p className="font-semibold text-ink-900">{d.label}</p>
+              <p id={`digest-${d.target}`} className="font-semibold text-ink-900">
+                {d.label}
+              </p>
               <p className="text-xs text-ink-500">
                 {d.subscribed ? 'Arrives every week after the snapshot.' : 'Not sent to you.'}
                 {d.byDefault ? ' (default)' : ''}
@@ -35,6 +37,7 @@ export function Component() {
               <input
                 type="checkbox"
                 className="h-4 w-4 accent-ink-900"
+                aria-describedby={`digest-${d.target}`}
                 checked={d.subscribed}
                 disabled={setDigest.isPending}
                 onChange={(e) => setDigest.mutate({ target: d.target, subscribed: e.target.checked })}
