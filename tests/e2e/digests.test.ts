@@ -469,8 +469,10 @@ describe('digest screens in the browser', () => {
     await page.goto(`${server.url}/digests?category=desk-lighting`);
     await h1(page, 'Digests');
     const refusal = page.getByRole('alert');
-    await refusal.getByText('This could not be loaded.').waitFor();
+    await refusal.getByText('Not available to you.').waitFor();
     expect(await refusal.textContent()).toContain('This category is not one of yours.');
+    // Trying again cannot change a refusal, so none is offered.
+    expect(await refusal.getByRole('button', { name: 'Try again' }).count()).toBe(0);
     expect(await page.getByRole('list', { name: 'Weekly digests' }).count()).toBe(0);
     expect(await page.getByRole('link', { name: 'Download PDF' }).count()).toBe(0);
     await shot(page, 'digests-manager-refused.png');

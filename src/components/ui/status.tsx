@@ -28,15 +28,24 @@ export function errorMessage(error: unknown): string {
   return 'Something went wrong.';
 }
 
+/** A refusal or a missing thing will not change by trying again, so it gets no retry button. */
+function errorHeading(error: unknown): { heading: string; retry: boolean } {
+  if (error instanceof ApiError && error.status === 403)
+    return { heading: 'Not available to you.', retry: false };
+  if (error instanceof ApiError && error.status === 404) return { heading: 'Not found.', retry: false };
+  return { heading: 'This could not be loaded.', retry: true };
+}
+
 export function ErrorPanel({ error, onRetry }: { error: unknown; onRetry?: () => void }) {
+  const { heading, retry } = errorHeading(error);
   return (
     <div
       role="alert"
       className="rounded-lg border border-coral-500/40 bg-coral-100 px-4 py-3 text-sm text-ink-900"
     >
-      <p className="font-semibold">This could not be loaded.</p>
+      <p className="font-semibold">{heading}</p>
       <p className="mt-1">{errorMessage(error)}</p>
-      {onRetry ? (
+      {onRetry && retry ? (
         <button type="button" className="mt-2 font-semibold text-ink-700 underline" onClick={onRetry}>
           Try again
         </button>
