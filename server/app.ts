@@ -12,6 +12,7 @@ import './lib/actor';
 import { bearerAuth } from './middleware/bearer-auth';
 import { errorHandler, notFoundApi } from './middleware/error-handler';
 import { configurePassport } from './modules/auth/passport';
+import { throttleSessionTouch } from './modules/auth/session-touch';
 import { apiRoutes, buildApiRouter } from './modules/registry';
 
 export type AppDeps = { config: Config; sequelize: Sequelize };
@@ -52,12 +53,14 @@ export function createApp({ config, sequelize }: AppDeps): Express {
   app.use(express.json({ limit: '10mb' }));
   app.use(buildApiRouter(apiRoutes.filter((r) => r.sessionless)));
 
-  const store = new SequelizeStore({
-    db: sequelize,
-    table: 'Session',
-    checkExpirationInterval: 15 * 60 * 1000,
-    expiration: 12 * 60 * 60 * 1000,
-  });
+  const store = throttleSessionTouch(
+    new SequelizeStore({
+      db: sequelize,
+      table: 'Session',
+      checkExpirationInterval: 15 * 60 * 1000,
+      expiration: 12 * 60 * 60 * 1000,
+    }),
+  );
   app.locals.shutdown = () => store.stopExpiringSessions();
   app.use(
     session({
