@@ -248,15 +248,13 @@ async function selectStandings(
     snapshotId: snapshot.id,
     moverThreshold: snapshot.params.moverThreshold,
   };
-  const [count] = await db().query<{ total: number }>(
-    `SELECT COUNT(*) AS total FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id WHERE ${where}`,
-    { replacements: base, type: QueryTypes.SELECT },
-  );
   const dir = query.dir === 'desc' ? 'DESC' : 'ASC';
-  const rows = await db().query<StandingsSqlRow>(
+  // The total of the filtered view comes with the page (one pass over the week's rows, not two).
+  const rows = await db().query<StandingsSqlRow & { total_rows: number }>(
     `SELECT i.sku, i.title, sr.n, sr.raw_mean, sr.smoothed, sr.lower_bound, sr.naive_rank, sr.smoothed_rank, sr.drift,
        sr.naive_movement, sr.smoothed_movement, sr.newest_age_days, sr.recent_share, sr.one_star_share,
-       sr.stale, sr.thin, sr.negative_cluster, ${moverSql} AS mover, sr.reviews_to_pass, sr.details
+       sr.stale, sr.thin, sr.negative_cluster, ${moverSql} AS mover, sr.reviews_to_pass, sr.details,
+       COUNT(*) OVER () AS total_rows
      FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
      WHERE ${where}
      ORDER BY ${sortSql[query.sort]} ${dir}, sr.smoothed_rank ASC, i.sku ASC
@@ -266,7 +264,16 @@ async function selectStandings(
       type: QueryTypes.SELECT,
     },
   );
-  return { rows: rows.map(toStandingsRow), total: Number(count?.total ?? 0) };
+  let total = rows.length > 0 ? Number(rows[0]!.total_rows) : 0;
+  if (rows.length === 0 && query.page > 1) {
+    // A page past the end carries no rows to read the total from.
+    const [count] = await db().query<{ total: number }>(
+      `SELECT COUNT(*) AS total FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id WHERE ${where}`,
+      { replacements: base, type: QueryTypes.SELECT },
+    );
+    total = Number(count?.total ?? 0);
+  }
+  return { rows: rows.map(toStandingsRow), total };
 }
 
 /** One page of a week's standings, sorted and filtered in SQL on whitelisted columns. */

@@ -181,6 +181,26 @@ describe('GET /api/categories/:slug/standings', () => {
     expect(Number(count)).toBeGreaterThan(400);
   });
 
+  it('gives the total of the filtered view on every page, also past the last one', async () => {
+    const first = (await analyst.get(`/api/categories/${packs}/standings?flags=thin&pageSize=10`).expect(200))
+      .body as Standings;
+    expect(first.total).toBeGreaterThan(10);
+    const lastPage = Math.ceil(first.total / 10);
+    const last = (
+      await analyst
+        .get(`/api/categories/${packs}/standings?flags=thin&pageSize=10&page=${lastPage}`)
+        .expect(200)
+    ).body as Standings;
+    expect(last.total).toBe(first.total);
+    expect(last.rows).toHaveLength(first.total - (lastPage - 1) * 10);
+    const past = (
+      await analyst
+        .get(`/api/categories/${packs}/standings?flags=thin&pageSize=10&page=${lastPage + 5}`)
+        .expect(200)
+    ).body as Standings;
+    expect(past).toMatchObject({ total: first.total, rows: [] });
+  });
+
   it('answers a week that has no snapshot with 404', async () => {
     await analyst.get(`/api/categories/${packs}/standings?week=2019-W01`).expect(404);
   });
