@@ -87,8 +87,10 @@ export async function getOutboxMessage(id: number): Promise<OutboxDetail> {
     text: parsed.text ?? '',
     hasHtml: typeof parsed.html === 'string' && parsed.html.length > 0,
     htmlUrl: `/api/outbox/${row.id}/html`,
+    // In the order people read a mail (sender, recipient, subject, date), not the order they were written.
     headers: parsed.headerLines
       .filter((h) => shown.includes(h.key))
+      .sort((a, b) => shown.indexOf(a.key) - shown.indexOf(b.key))
       .map((h) => ({
         name: h.line.split(':')[0] ?? h.key,
         // The subject arrives MIME-encoded (non-ASCII middle dots); show it as people read it.

@@ -187,6 +187,16 @@ describe('digest mail through the local SMTP server', () => {
       (h) => h.name === 'Subject',
     );
     expect(subject?.value).toMatch(/^Ballast · Portable Power · week /);
+    // In reading order: who from, to whom, about what, when; the unsubscribe headers last.
+    expect((detail.body.headers as { name: string }[]).map((h) => h.name.toLowerCase())).toEqual([
+      'from',
+      'to',
+      'subject',
+      'date',
+      'message-id',
+      'list-unsubscribe',
+      'list-unsubscribe-post',
+    ]);
     const html = await ops.get(detail.body.htmlUrl).expect(200);
     expect(html.headers['content-security-policy']).toContain('sandbox');
     expect(html.headers['content-security-policy']).toContain("default-src 'none'");

@@ -21,7 +21,7 @@ function Message({ id }: { id: number }) {
     <article className="rounded-lg border border-ink-100 bg-white">
       <header className="border-b border-ink-100 px-4 py-3 text-sm">
         <h2 className="break-words text-lg font-bold text-ink-900">{m.subject}</h2>
-        <dl className="mt-2 grid grid-cols-[7rem_1fr] gap-x-2 gap-y-1 text-ink-700">
+        <dl className="mt-2 grid grid-cols-[max-content_1fr] gap-x-3 gap-y-1 text-ink-700">
           {m.headers.map((h) => (
             <div key={h.name} className="contents">
               <dt className="font-semibold">{h.name}</dt>
