@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { isIsoWeekLabel } from '../iso-week';
 
 export const jobKinds = ['snapshot', 'backfill', 'digest'] as const;
 export type JobKind = (typeof jobKinds)[number];
@@ -56,6 +57,30 @@ export const jobRunDetailSchema = jobRunSchema.extend({
   heartbeatAt: z.string().nullable(),
 });
 export type JobRunDetail = z.infer<typeof jobRunDetailSchema>;
+
+const isoWeek = z
+  .string()
+  .refine(isIsoWeekLabel, 'Use an ISO week such as 2026-W48 (week 53 only in years that have one).');
+
+/** Past weekly snapshots to compute from imported history, for one category or all of them. */
+export const backfillInputSchema = z
+  .object({
+    /** A category's slug, or "all". */
+    category: z.string().min(1).max(64),
+    /** The first week; empty means the category's first week with data. */
+    fromWeek: isoWeek.optional(),
+    /** The last week; empty means the last week that has ended. */
+    toWeek: isoWeek.optional(),
+    /** Recompute weeks that already have a snapshot instead of keeping them. */
+    replace: z.boolean().default(false),
+  })
+  .refine((b) => !b.fromWeek || !b.toWeek || b.fromWeek <= b.toWeek, {
+    message: 'The first week must not come after the last one.',
+    path: ['toWeek'],
+  });
+export type BackfillInput = z.output<typeof backfillInputSchema>;
+/** What the backfill form holds before validation (replace may be left out). */
+export type BackfillFormValues = z.input<typeof backfillInputSchema>;
 
 export const jobListQuerySchema = z.object({
   status: z.enum(jobStatuses).optional(),

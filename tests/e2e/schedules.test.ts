@@ -110,6 +110,37 @@ describe('schedules and job history in the browser', () => {
     await context.close();
   });
 
+  it('lets ops backfill past weeks of a category from the job history and follow the run', async () => {
+    const context = await browser.newContext({ viewport: { width: 1360, height: 900 }, timezoneId: 'UTC' });
+    const page = await context.newPage();
+    const consoleErrors: string[] = [];
+    page.on('console', (msg) => {
+      if (msg.type() === 'error') consoleErrors.push(msg.text());
+    });
+    await signInAsOps(page);
+    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Job history' }).click();
+    await page.getByRole('button', { name: 'Backfill past weeks' }).click();
+    const form = page.getByRole('form', { name: 'Backfill past weeks' });
+    await form.getByLabel('Category').selectOption({ label: 'Trail Packs' });
+    await form.getByLabel('From week').fill('2026-W54');
+    await form.getByRole('button', { name: 'Queue backfill' }).click();
+    await form.getByText('Use an ISO week such as 2026-W48').waitFor();
+    await form.getByLabel('From week').fill('2026-W40');
+    await form.getByLabel('To week').fill('2026-W41');
+    await form.getByRole('button', { name: 'Queue backfill' }).click();
+    await form.getByRole('status').getByText('Queued 1 run').waitFor();
+
+    const runRow = page.getByRole('row').filter({ hasText: 'Backfill' }).filter({ hasText: 'Trail Packs' });
+    await runRow.getByText('Succeeded').waitFor({ timeout: 45_000 });
+    const detail = page.getByTestId('job-detail');
+    await expect
+      .poll(() => detail.locator('pre').textContent(), { timeout: 15_000 })
+      .toContain('Backfill wrote 2 weekly snapshot(s).');
+    await page.screenshot({ path: path.join(screenshotDir, 'jobs-backfill.png'), fullPage: true });
+    expect(consoleErrors, 'no console errors').toEqual([]);
+    await context.close();
+  });
+
   it('stops the scheduler first on SIGTERM, then the server', async () => {
     await server.stop();
     const out = server.output();

@@ -66,3 +66,71 @@ describe('the snapshot job on a schedule', () => {
     expect(await Snapshot.count({ where: { categoryId: category.id, isoWeek: week } })).toBe(1);
   });
 });
+
+describe('POST /api/jobs/backfill', () => {
+  it('queues a backfill run that computes the asked weeks of a category, oldest first', async () => {
+    const category = (await Category.findOne({ where: { slug: 'trail-packs' } }))!;
+    const queued = await ops
+      .post('/api/jobs/backfill')
+      .set('x-csrf-token', ops.csrf)
+      .send({ category: 'trail-packs', fromWeek: '2026-W40', toWeek: '2026-W42' })
+      .expect(202);
+    expect(queued.body.runs).toHaveLength(1);
+    expect(queued.body.runs[0]).toMatchObject({
+      kind: 'backfill',
+      trigger: 'manual',
+      categoryId: category.id,
+    });
+    await scheduler.idle();
+    const run = await ops.get(`/api/jobs/${queued.body.runs[0].id}`).expect(200);
+    expect(run.body).toMatchObject({ status: 'succeeded', isoWeek: '2026-W42' });
+    expect(run.body.params).toMatchObject({ fromWeek: '2026-W40', toWeek: '2026-W42', replace: false });
+    expect(run.body.log.join('\n')).toContain('Backfill wrote 3 weekly snapshot(s).');
+    const weeks = await Snapshot.findAll({
+      where: { categoryId: category.id, isoWeek: ['2026-W40', '2026-W41', '2026-W42'] },
+      attributes: ['isoWeek'],
+    });
+    expect(weeks.map((w) => w.isoWeek).sort()).toEqual(['2026-W40', '2026-W41', '2026-W42']);
+    const audit = await (
+      await t.signIn('admin')
+    )
+      .get('/api/admin/audit?action=job.backfill_queued')
+      .expect(200);
+    expect(audit.body.items[0].details).toMatchObject({ categories: ['trail-packs'], fromWeek: '2026-W40' });
+  });
+
+  it('queues one run per category for "all", and refuses weeks that have not ended or run backwards', async () => {
+    const all = await ops
+      .post('/api/jobs/backfill')
+      .set('x-csrf-token', ops.csrf)
+      .send({ category: 'all', fromWeek: '2026-W42', toWeek: '2026-W42' })
+      .expect(202);
+    expect(all.body.runs).toHaveLength(await Category.count());
+    await scheduler.idle();
+    for (const r of all.body.runs as { id: number }[])
+      expect((await ops.get(`/api/jobs/${r.id}`).expect(200)).body.status).toBe('succeeded');
+
+    const future = await ops
+      .post('/api/jobs/backfill')
+      .set('x-csrf-token', ops.csrf)
+      .send({ category: 'trail-packs', toWeek: '2099-W01' })
+      .expect(400);
+    expect(future.body.error.message).toContain('has not ended yet');
+    const backwards = await ops
+      .post('/api/jobs/backfill')
+      .set('x-csrf-token', ops.csrf)
+      .send({ category: 'trail-packs', fromWeek: '2026-W42', toWeek: '2026-W40' })
+      .expect(400);
+    expect(JSON.stringify(backwards.body.error)).toContain('must not come after');
+    await ops
+      .post('/api/jobs/backfill')
+      .set('x-csrf-token', ops.csrf)
+      .send({ category: 'trail-packs', fromWeek: '2026-W54' })
+      .expect(400);
+    await ops
+      .post('/api/jobs/backfill')
+      .set('x-csrf-token', ops.csrf)
+      .send({ category: 'no-such-category' })
+      .expect(404);
+  });
+});

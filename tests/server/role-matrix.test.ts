@@ -35,6 +35,7 @@ const expected: Record<string, Allowed> = {
   'GET /api/jobs': ['ops', 'admin'],
   'GET /api/jobs/:id': ['ops', 'admin'],
   'POST /api/jobs/:id/retry': ['ops', 'admin'],
+  'POST /api/jobs/backfill': ['ops', 'admin'],
   'POST /api/imports/preview': ['admin', 'ops', 'manager'],
   'POST /api/imports': ['admin', 'ops', 'manager'],
   'GET /api/imports': ['admin', 'ops', 'manager'],

@@ -1,4 +1,6 @@
+import { z } from 'zod';
 import {
+  backfillInputSchema,
   jobListQuerySchema,
   jobListSchema,
   jobRunDetailSchema,
@@ -6,7 +8,7 @@ import {
 } from '../../../shared/schemas/jobs.schema';
 import { AppError } from '../../lib/app-error';
 import { access, route } from '../../lib/route';
-import { getJobRun, listJobRuns, retryJobRun } from './jobs.service';
+import { getJobRun, listJobRuns, queueBackfill, retryJobRun } from './jobs.service';
 
 const ops = access.roles(['ops', 'admin']);
 
@@ -35,6 +37,17 @@ export const jobRoutes = [
     access: ops,
     response: jobRunDetailSchema,
     handler: (req) => getJobRun(runId(req.params.id)),
+  }),
+  route({
+    method: 'post',
+    path: '/api/jobs/backfill',
+    tag: 'jobs',
+    summary: 'Queue backfill runs: past weekly snapshots of one category or all, from imported history',
+    access: ops,
+    body: backfillInputSchema,
+    response: z.object({ runs: z.array(jobRunSchema) }),
+    status: 202,
+    handler: (req, _res, { body }) => queueBackfill(body, req.actor!, req.ip),
   }),
   route({
     method: 'post',

@@ -1,6 +1,7 @@
 import { Op, UniqueConstraintError, type WhereOptions } from 'sequelize';
 import { lastCompletedIsoWeek } from '../../../shared/iso-week';
 import type {
+  BackfillInput,
   JobKind,
   JobList,
   JobListQuery,
@@ -382,4 +383,66 @@ export async function retryJobRun(id: number, actor: Actor, ip?: string): Promis
     ip,
   });
   return retry!;
+}
+
+/**
+ * Queues one backfill run per category (or a single one): past weekly snapshots from imported history,
+ * oldest first, with progress in the job history. The scheduler of any app server takes them up.
+ */
+export async function queueBackfill(
+  input: BackfillInput,
+  actor: Actor,
+  ip?: string,
+  now = new Date(),
+): Promise<{ runs: JobRunRecord[] }> {
+  const lastWeek = lastCompletedIsoWeek(now);
+  for (const week of [input.fromWeek, input.toWeek]) {
+    if (week && week > lastWeek) {
+      throw new AppError(
+        'bad_request',
+        `${week} has not ended yet; the last week that has is ${lastWeek}.`,
+        400,
+      );
+    }
+  }
+  const categories =
+    input.category === 'all'
+      ? await Category.findAll({ attributes: ['id', 'slug'], order: [['name', 'ASC']] })
+      : await Category.findAll({ where: { slug: input.category }, attributes: ['id', 'slug'] });
+  if (categories.length === 0) {
+    throw input.category === 'all'
+      ? new AppError('bad_request', 'There is no category to backfill yet.', 400)
+      : AppError.notFound('The category');
+  }
+  const runs = await queueRuns(
+    categories.map((c) => ({
+      kind: 'backfill' as const,
+      categoryId: c.id,
+      scheduleId: null,
+      isoWeek: null,
+      params: {
+        ...(input.fromWeek ? { fromWeek: input.fromWeek } : {}),
+        toWeek: input.toWeek ?? lastWeek,
+        replace: input.replace,
+      },
+      trigger: 'manual' as const,
+      createdBy: actor.email,
+      now,
+    })),
+  );
+  await recordAudit({
+    actor,
+    action: 'job.backfill_queued',
+    targetType: 'job_run',
+    targetId: runs[0]!.id,
+    details: {
+      categories: categories.map((c) => c.slug),
+      fromWeek: input.fromWeek ?? null,
+      toWeek: input.toWeek ?? lastWeek,
+      replace: input.replace,
+      runIds: runs.map((r) => r.id),
+    },
+    ip,
+  });
+  return { runs };
 }

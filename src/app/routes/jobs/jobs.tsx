@@ -1,8 +1,11 @@
+import { useState } from 'react';
 import { useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
+import { lastCompletedIsoWeek } from '../../../../shared/iso-week';
 import { jobStatuses, jobTriggerLabels, type JobStatus } from '../../../../shared/schemas/jobs.schema';
 import { RouteError } from '../../../components/errors/route-error';
 import { WidgetBoundary } from '../../../components/errors/widget-boundary';
 import { NewerOlderPager } from '../../../components/ui/newer-older-pager';
+import { Button } from '../../../components/ui/button';
 import { PageHeader } from '../../../components/ui/page-header';
 import { EmptyState, ErrorPanel, Loading } from '../../../components/ui/status';
 import { categoriesQueryOptions, useCategories } from '../../../features/categories/api/get-categories';
@@ -12,6 +15,7 @@ import {
   useJobs,
   type JobFilter,
 } from '../../../features/jobs/api/get-jobs';
+import { BackfillForm } from '../../../features/jobs/components/backfill-form';
 import { formatDuration, formatWhen } from '../../../features/jobs/components/format';
 import { JobDetail } from '../../../features/jobs/components/job-detail';
 import { StatusBadge } from '../../../features/jobs/components/status-badge';
@@ -43,6 +47,7 @@ export function Component() {
   const jobs = useJobs(filter);
   const categories = useCategories();
   const selected = Number(params.get('run')) || null;
+  const [backfilling, setBackfilling] = useState(false);
   const pages = jobs.data ? Math.max(1, Math.ceil(jobs.data.total / JOBS_PAGE_SIZE)) : 1;
   const setParam = (key: string, value: string) => {
     const next = new URLSearchParams(params);
@@ -58,13 +63,35 @@ export function Component() {
         title="Job history"
         lead="Every snapshot and backfill run: on schedule, caught up after downtime, run by hand, or retried."
         actions={
-          jobs.data && jobs.data.active > 0 ? (
-            <span role="status" className="text-sm text-ink-500">
-              {jobs.data.active} run{jobs.data.active === 1 ? '' : 's'} in progress — updating
-            </span>
-          ) : null
+          <div className="flex items-center gap-3">
+            {jobs.data && jobs.data.active > 0 ? (
+              <span role="status" className="text-sm text-ink-500">
+                {jobs.data.active} run{jobs.data.active === 1 ? '' : 's'} in progress — updating
+              </span>
+            ) : null}
+            <Button
+              variant="secondary"
+              aria-expanded={backfilling}
+              onClick={() => setBackfilling((open) => !open)}
+            >
+              {backfilling ? 'Close backfill' : 'Backfill past weeks'}
+            </Button>
+          </div>
         }
       />
+      {backfilling ? (
+        <BackfillForm
+          categories={categories.data ?? []}
+          lastWeek={lastCompletedIsoWeek(new Date())}
+          onQueued={(ids) => {
+            const next = new URLSearchParams(params);
+            next.delete('page');
+            next.delete('status');
+            if (ids.length === 1) next.set('run', String(ids[0]));
+            setParams(next);
+          }}
+        />
+      ) : null}
       <form
         className="mb-4 flex flex-wrap gap-4"
         role="search"
@@ -170,7 +197,8 @@ export function Component() {
                       <StatusBadge status={run.status} />
                     </td>
                     <td className="px-4 py-2">
-                      {run.scheduleName ?? (run.scheduleId ? `#${run.scheduleId}` : '—')}
+                      {run.scheduleName ??
+                        (run.scheduleId ? `#${run.scheduleId}` : run.kind === 'backfill' ? 'Backfill' : '—')}
                     </td>
                     <td className="px-4 py-2">{run.categoryName ?? '—'}</td>
                     <td className="whitespace-nowrap px-4 py-2 font-mono text-xs">{run.isoWeek ?? '—'}</td>
