@@ -1,6 +1,7 @@
 import path from 'node:path';
 import PDFDocument from 'pdfkit';
 import type { PaperSize } from '../../shared/schemas/digests.schema';
+import { hasRightToLeft, visualOrder } from './bidi';
 import { colours, fontDir } from './theme';
 import { sfntFromWoff } from './woff';
 
@@ -8,11 +9,16 @@ export type FontStyle = 'regular' | 'medium' | 'semibold' | 'bold' | 'heavy' | '
 
 /**
  * @fontsource ships each family as one file per script subset, so a style is a chain of files tried in
- * order for every character. A character none of them has is drawn as a hollow box of the same width
+ * order for every character, Noto Sans Hebrew and Noto Sans Arabic (same weight) at its end. A character
+ * none of them has (Chinese, Japanese and Korean among them) is drawn as a hollow box of the same width
  * class, so a title in a script the fonts lack keeps its place and never breaks the line.
  */
 const sansSubsets = ['latin', 'latin-ext', 'cyrillic', 'cyrillic-ext', 'greek', 'vietnamese'];
 const monoSubsets = ['latin', 'latin-ext', 'cyrillic', 'cyrillic-ext', 'vietnamese'];
+const rightToLeftFamilies = [
+  { family: 'noto-sans-hebrew', subset: 'hebrew' },
+  { family: 'noto-sans-arabic', subset: 'arabic' },
+] as const;
 
 const styleFiles: Record<FontStyle, { family: 'manrope' | 'ibm-plex-mono'; weight: number }> = {
   regular: { family: 'manrope', weight: 400 },
@@ -96,8 +102,16 @@ export class Canvas {
         const name = `${style}-${subset}`;
         const file = path.join(fontDir(spec.family), `${spec.family}-${subset}-${spec.weight}-normal.woff`);
         this.doc.registerFont(name, sfntFromWoff(file));
-        return { name, font: null };
+        return { name, font: null as GlyphFont | null };
       });
+      for (const { family, subset } of rightToLeftFamilies) {
+        const name = `${style}-${subset}`;
+        this.doc.registerFont(
+          name,
+          sfntFromWoff(path.join(fontDir(family), `${family}-${subset}-${spec.weight}-normal.woff`)),
+        );
+        chain.push({ name, font: null });
+      }
       this.chains.set(style, chain);
     }
     this.y = this.top;
@@ -123,12 +137,17 @@ export class Canvas {
     const cached = this.runCache.get(key);
     if (cached) return cached;
     const chain = this.chains.get(style)!;
+    // In a line with Hebrew or Arabic, spaces stand alone so the runs can be put in visual order.
+    const bidi = hasRightToLeft(text);
     const runs: Run[] = [];
     for (const ch of text.normalize('NFC')) {
       const cp = ch.codePointAt(0)!;
       let font: string | null;
       const last = runs[runs.length - 1];
-      if (/\s/u.test(ch)) {
+      const space = /\s/u.test(ch);
+      if (space && bidi) {
+        font = chain[0]!.name;
+      } else if (space) {
         font = last?.font ?? chain[0]!.name;
         if (font === null) font = chain[0]!.name;
       } else if (MARK.test(ch) && last) {
@@ -136,12 +155,26 @@ export class Canvas {
       } else {
         font = chain.find((f) => this.glyphs(f).hasGlyphForCodePoint(cp))?.name ?? null;
       }
-      if (last && last.font === font) last.text += ch;
+      const lastWasSpace = last !== undefined && /^\s+$/u.test(last.text);
+      if (last && last.font === font && (!bidi || space === lastWasSpace)) last.text += ch;
       else runs.push({ font, text: ch });
     }
     if (this.runCache.size > 20_000) this.runCache.clear();
     this.runCache.set(key, runs);
     return runs;
+  }
+
+  private readonly ascenders = new Map<string, number>();
+
+  /** How far below `y` a run's baseline sits when drawn from the top, in points: its font's ascender. */
+  private ascender(font: string, size: number): number {
+    let units = this.ascenders.get(font);
+    if (units === undefined) {
+      this.doc.font(font);
+      units = (this.doc as unknown as { _font: { ascender: number } })._font.ascender;
+      this.ascenders.set(font, units);
+    }
+    return (units / 1000) * size;
   }
 
   private runWidth(run: Run, size: number): number {
@@ -186,7 +219,10 @@ export class Canvas {
     if (options.width !== undefined && options.align === 'right') cx = x + options.width - total;
     if (options.width !== undefined && options.align === 'center') cx = x + (options.width - total) / 2;
     const colour = options.colour ?? colours.ink;
-    for (const run of this.runs(shown, style)) {
+    const runs = this.runs(shown, style);
+    // Every run sits on the baseline of the style's first font, whatever the ascender of its own.
+    const baseline = this.ascender(this.chains.get(style)![0]!.name, size);
+    for (const run of hasRightToLeft(shown) ? visualOrder(runs) : runs) {
       const w = this.runWidth(run, size);
       if (run.font === null) {
         const box = size * 0.5;
@@ -200,7 +236,8 @@ export class Canvas {
             .restore();
         }
       } else {
-        this.doc.font(run.font).fontSize(size).fillColor(colour).text(run.text, cx, y, {
+        const top = y + baseline - this.ascender(run.font, size);
+        this.doc.font(run.font).fontSize(size).fillColor(colour).text(run.text, cx, top, {
           lineBreak: false,
           baseline: 'top',
         });

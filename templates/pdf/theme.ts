@@ -25,6 +25,8 @@ export const colours = {
 const root = path.resolve(import.meta.dirname, '..', '..');
 
 /** Where the .woff files of a @fontsource family live (woff, not woff2: fontkit handles it reliably). */
-export function fontDir(family: 'manrope' | 'ibm-plex-mono'): string {
+export function fontDir(
+  family: 'manrope' | 'ibm-plex-mono' | 'noto-sans-hebrew' | 'noto-sans-arabic',
+): string {
   return path.join(root, 'node_modules', '@fontsource', family, 'files');
 }

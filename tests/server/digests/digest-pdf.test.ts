@@ -104,6 +104,8 @@ describe('category digest PDF', () => {
     data.items[2] = { ...data.items[2]!, title: 'Électrique bouilloire Ōsaka – Łódź édition ñ' };
     data.items[3] = { ...data.items[3]!, title: 'Чайник электрический · Ηλεκτρικός βραστήρας' };
     data.items[4] = { ...data.items[4]!, title: '電気ケトル 1.7L · غلاية كهربائية · קומקום' };
+    data.items[5] = { ...data.items[5]!, title: 'קומקום חשמלי 1.7 ליטר' };
+    data.items[6] = { ...data.items[6]!, title: 'Travel kettle غلاية كهربائية 1.7L' };
     const { pdf, pages } = await renderCategoryDigest(data, 'A4');
     saveArtefacts('hostile-titles', pdf, 8);
     const all = (await pdfPages(pdf)).join('\n');
@@ -115,6 +117,9 @@ describe('category digest PDF', () => {
     expect(all).toContain('Чайник');
     expect(all).toContain('Ηλεκτρικός');
     expect(all).toContain('1.7L');
+    // Hebrew and Arabic are drawn in their own fonts (Noto Sans), each word right to left.
+    expect(all).toContain('קומקום');
+    expect(all).toContain('חשמלי');
     // the standings still fit the same number of rows per page as with plain titles
     const plain = await loadCategoryDigestData(await categoryId('portable-power'), week, testDemoAsOf);
     expect(pages).toBe((await renderCategoryDigest(plain, 'A4')).pages);
