@@ -473,6 +473,8 @@ describe('digest screens in the browser', () => {
     expect(await refusal.textContent()).toContain('This category is not one of yours.');
     // Trying again cannot change a refusal, so none is offered.
     expect(await refusal.getByRole('button', { name: 'Try again' }).count()).toBe(0);
+    // The picker names the category asked for, not the first of hers.
+    expect(await page.getByLabel('Digest of').inputValue()).toBe('desk-lighting');
     expect(await page.getByRole('list', { name: 'Weekly digests' }).count()).toBe(0);
     expect(await page.getByRole('link', { name: 'Download PDF' }).count()).toBe(0);
     await shot(page, 'digests-manager-refused.png');

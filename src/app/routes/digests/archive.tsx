@@ -25,6 +25,8 @@ export function Component() {
   const [selected, setSelected] = useState<number | undefined>(undefined);
   const digest = list.data?.find((d) => d.id === selected) ?? list.data?.[0];
   const name = isPortfolio ? 'Portfolio' : (categories.data?.find((c) => c.slug === chosen)?.name ?? chosen);
+  // A link to a category the list does not hold (not one of the reader's): show that it is the one asked for.
+  const listed = isPortfolio ? canPortfolio : (categories.data ?? []).some((c) => c.slug === chosen);
 
   return (
     <>
@@ -42,6 +44,11 @@ export function Component() {
             setParams({ category: e.target.value });
           }}
         >
+          {!listed && chosen && categories.data ? (
+            <option value={chosen} disabled>
+              {chosen}
+            </option>
+          ) : null}
           {canPortfolio ? <option value={PORTFOLIO}>Portfolio (every category)</option> : null}
           {(categories.data ?? []).map((c) => (
             <option key={c.slug} value={c.slug}>
