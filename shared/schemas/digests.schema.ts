@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import type { CategoryFigures, ResolvedParameters, WhatItTakesStatus } from '../scoring/types';
+import { isoWeekSchema } from './iso-week.schema';
 
 export const paperSizes = ['A4', 'LETTER'] as const;
 export type PaperSize = (typeof paperSizes)[number];
@@ -123,14 +124,12 @@ export type DigestRecord = z.infer<typeof digestRecordSchema>;
 
 export const digestListSchema = z.array(digestRecordSchema);
 
-export const isoWeekParamSchema = z.string().regex(/^\d{4}-W\d{2}$/, 'Use an ISO week such as 2026-W48.');
-
 export const pdfQuerySchema = z.object({
   disposition: z.enum(['inline', 'attachment']).default('attachment'),
 });
 
 export const produceDigestsSchema = z.object({
-  isoWeek: isoWeekParamSchema,
+  isoWeek: isoWeekSchema,
   /** Category slugs; all categories with a snapshot of the week when absent. */
   categories: z.array(z.string()).max(200).optional(),
   /** Queue mail to subscribers (default) or only store the PDFs. */

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { isIsoWeekLabel } from '../iso-week';
+import { isoWeekSchema } from './iso-week.schema';
 
 export const jobKinds = ['snapshot', 'backfill', 'digest'] as const;
 export type JobKind = (typeof jobKinds)[number];
@@ -58,9 +59,10 @@ export const jobRunDetailSchema = jobRunSchema.extend({
 });
 export type JobRunDetail = z.infer<typeof jobRunDetailSchema>;
 
-const isoWeek = z
-  .string()
-  .refine(isIsoWeekLabel, 'Use an ISO week such as 2026-W48 (week 53 only in years that have one).');
+const isoWeek = isoWeekSchema.refine(
+  isIsoWeekLabel,
+  'Use an ISO week such as 2026-W48 (week 53 only in years that have one).',
+);
 
 /** Past weekly snapshots to compute from imported history, for one category or all of them. */
 export const backfillInputSchema = z

@@ -1,9 +1,8 @@
 import { z } from 'zod';
 import { priorMeanStrategies, priorWeightStrategies } from '../scoring/settings';
+import { isoWeekSchema } from './iso-week.schema';
 
-const isoWeek = z.string().regex(/^\d{4}-W\d{2}$/, 'Use an ISO week such as 2026-W48.');
-
-export const weekQuerySchema = z.object({ week: isoWeek.optional() });
+export const weekQuerySchema = z.object({ week: isoWeekSchema.optional() });
 export type WeekQuery = z.infer<typeof weekQuerySchema>;
 
 /** Columns the standings may be sorted by; anything else is refused before it reaches SQL. */
@@ -27,7 +26,7 @@ export const standingsFlags = ['stale', 'thin', 'cluster', 'mover'] as const;
 export type StandingsFlag = (typeof standingsFlags)[number];
 
 export const standingsQuerySchema = z.object({
-  week: isoWeek.optional(),
+  week: isoWeekSchema.optional(),
   sort: z.enum(standingsSortColumns).default('smoothedRank'),
   dir: z.enum(['asc', 'desc']).default('asc'),
   /** Comma-separated; an item must carry every flag named. */
@@ -212,7 +211,7 @@ export const itemDetailSchema = z.object({
 export type ItemDetail = z.infer<typeof itemDetailSchema>;
 
 export const whatIfQuerySchema = z.object({
-  week: isoWeek.optional(),
+  week: isoWeekSchema.optional(),
   halfLifeDays: z.coerce.number().positive().max(100000).optional(),
 });
 export type WhatIfQuery = z.infer<typeof whatIfQuerySchema>;
@@ -272,7 +271,7 @@ export const categorySettingsSchema = z.object({
 export type CategorySettings = z.infer<typeof categorySettingsSchema>;
 
 export const calibrationNoteInputSchema = z.object({
-  isoWeek: isoWeek,
+  isoWeek: isoWeekSchema,
   note: z.string().trim().max(2000).default(''),
   observedCount: z.number().int().min(0).max(100000),
   matchedCount: z.number().int().min(0).max(100000),

@@ -1,11 +1,11 @@
 import type { Response } from 'express';
 import {
   digestListSchema,
-  isoWeekParamSchema,
   pdfQuerySchema,
   produceDigestsResultSchema,
   produceDigestsSchema,
 } from '../../../shared/schemas/digests.schema';
+import { isoWeekSchema } from '../../../shared/schemas/iso-week.schema';
 import { access, route } from '../../lib/route';
 import { recordAudit } from '../audit/audit.service';
 import {
@@ -51,7 +51,7 @@ export const digestRoutes = [
     access: access.category('slug'),
     query: pdfQuerySchema,
     handler: async (req, res, { query }) => {
-      const week = isoWeekParamSchema.parse(req.params.week);
+      const week = isoWeekSchema.parse(req.params.week);
       const file = await digestFile('category', req.category!.id, req.category!.slug, week);
       return sendPdf(res, file, query.disposition);
     },
@@ -73,7 +73,7 @@ export const digestRoutes = [
     access: access.roles(readers),
     query: pdfQuerySchema,
     handler: async (req, res, { query }) => {
-      const week = isoWeekParamSchema.parse(req.params.week);
+      const week = isoWeekSchema.parse(req.params.week);
       return sendPdf(res, await digestFile('portfolio', 0, null, week), query.disposition);
     },
   }),
