@@ -1,10 +1,8 @@
-import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
 import autocannon from 'autocannon';
-import { rootDir } from '../config/env';
 import { startEmbeddedMariadb } from '../db/embedded-mariadb';
 import { migrateUp } from '../db/migrator';
 import { Category, User } from '../db/models';
@@ -12,6 +10,7 @@ import { closeDatabase, openDatabase } from '../db/sequelize';
 import { setLogLevel } from '../lib/logger';
 import { hashPassword } from '../modules/auth/auth.service';
 import { freePort } from '../lib/free-port';
+import { startServerProcess, type ServerProcess } from '../../tests/helpers/server-process';
 import { fillCategory, signIn } from './standings.bench';
 
 const CONNECTIONS = 50;
@@ -27,42 +26,6 @@ function rssMb(pid: number): number {
     .find((l) => l.startsWith('VmRSS:'));
   if (!line) throw new Error(`No VmRSS for process ${pid}.`);
   return Number(line.replace(/\D+/g, '')) / 1024;
-}
-
-/** Ballast as `npm start` runs it (minus the client build), on its own port, scheduler off. */
-async function startBallast(databaseUrl: string): Promise<{ child: ChildProcess; base: string }> {
-  const port = await freePort();
-  const base = `http://127.0.0.1:${port}`;
-  let log = '';
-  const child = spawn(
-    process.execPath,
-    ['--import', 'tsx', path.join(rootDir, 'server/index.ts'), '--no-build'],
-    {
-      cwd: rootDir,
-      env: {
-        ...process.env,
-        NODE_ENV: 'production',
-        DATABASE_URL: databaseUrl,
-        PORT: String(port),
-        PUBLIC_URL: base,
-        SESSION_SECRET: 'load-bench-secret-of-ballast',
-        BALLAST_SCHEDULER: 'false',
-        BALLAST_DEMO: 'false',
-        BALLAST_SMTP_PORT: String(await freePort()),
-        LOG_LEVEL: 'warn',
-      },
-      stdio: ['ignore', 'pipe', 'pipe'],
-    },
-  );
-  child.stdout?.on('data', (d: Buffer) => (log += d.toString()));
-  child.stderr?.on('data', (d: Buffer) => (log += d.toString()));
-  const deadline = Date.now() + 120_000;
-  while (!log.includes(`Ballast is running at ${base}`)) {
-    if (child.exitCode !== null) throw new Error(`Ballast exited at start:\n${log}`);
-    if (Date.now() > deadline) throw new Error(`Ballast did not start in time:\n${log}`);
-    await sleep(100);
-  }
-  return { child, base };
 }
 
 function figures(name: string, result: autocannon.Result): Figures {
@@ -85,7 +48,7 @@ export async function run(): Promise<void> {
   setLogLevel('silent');
   const dir = mkdtempSync(path.join(os.tmpdir(), 'ballast-bench-load-'));
   const mariadb = await startEmbeddedMariadb({ dir, port: await freePort(), database: 'ballast_load' });
-  let ballast: ChildProcess | undefined;
+  let server: ServerProcess | undefined;
   try {
     const sequelize = openDatabase(mariadb.url);
     await migrateUp(sequelize);
@@ -116,9 +79,15 @@ export async function run(): Promise<void> {
     );
     await closeDatabase();
 
-    const server = await startBallast(mariadb.url);
-    ballast = server.child;
-    const { base } = server;
+    // Ballast as `npm start` runs it (minus the client build), on its own port, scheduler off.
+    server = await startServerProcess(mariadb.url, {
+      NODE_ENV: 'production',
+      SESSION_SECRET: 'load-bench-secret-of-ballast',
+      BALLAST_SCHEDULER: 'false',
+      BALLAST_DEMO: 'false',
+    });
+    const ballast = server.child;
+    const base = server.url;
     const cookie = await signIn(base, 'bench.analyst@bench.ballast.test', password);
 
     // An ops token through the real admin API (session cookie and CSRF token, as the web app sends them).
@@ -178,11 +147,11 @@ export async function run(): Promise<void> {
     await sleep(2000);
     const before = rssMb(ballast.pid!);
     let peak = before;
-    const sampler = setInterval(() => (peak = Math.max(peak, rssMb(ballast!.pid!))), 250);
+    const sampler = setInterval(() => (peak = Math.max(peak, rssMb(ballast.pid!))), 250);
 
     const results: Figures[] = [];
     const rssAfter: string[] = [];
-    const note = (phase: string) => rssAfter.push(`${phase} ${rssMb(ballast!.pid!).toFixed(0)} MB`);
+    const note = (phase: string) => rssAfter.push(`${phase} ${rssMb(ballast.pid!).toFixed(0)} MB`);
     const session = { cookie, accept: 'application/json' };
     results.push(
       figures(
@@ -255,10 +224,7 @@ export async function run(): Promise<void> {
         (Math.abs(change) <= 0.2 ? 'within 20%' : 'NOT within 20%'),
     );
   } finally {
-    if (ballast && ballast.exitCode === null) {
-      ballast.kill('SIGTERM');
-      await new Promise((resolve) => ballast!.once('exit', resolve));
-    }
+    await server?.stop();
     await closeDatabase();
     await mariadb.stop();
     rmSync(dir, { recursive: true, force: true });
