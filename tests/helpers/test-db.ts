@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto';
-import type { Sequelize } from 'sequelize';
+import { QueryTypes, type Sequelize } from 'sequelize';
 import { inject } from 'vitest';
 import { migrateUp } from '../../server/db/migrator';
 import { closeDatabase, db, openDatabase } from '../../server/db/sequelize';
@@ -27,4 +27,10 @@ export async function createTestDatabase(): Promise<TestDatabase> {
       await closeDatabase();
     },
   };
+}
+
+/** Every table of the open test database except the session store, which each request may touch. */
+export async function tablesExceptSessions(): Promise<string[]> {
+  const rows = (await db().query('SHOW TABLES', { type: QueryTypes.SELECT })) as Record<string, string>[];
+  return rows.map((r) => Object.values(r)[0]!).filter((name) => name !== 'sessions');
 }

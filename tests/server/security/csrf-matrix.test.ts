@@ -3,6 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { db } from '../../../server/db/sequelize';
 import { apiRoutes } from '../../../server/modules/registry';
 import { setupTestApp, type Agent, type TestApp } from '../../helpers/test-app';
+import { tablesExceptSessions } from '../../helpers/test-db';
 
 /*
  * Every state-changing route in the registry, called with a signed-in admin's cookie as a forged page
@@ -23,9 +24,8 @@ function pathOf(path: string): string {
 }
 
 async function counts(): Promise<Record<string, number>> {
-  const tables = (await db().query('SHOW TABLES', { type: QueryTypes.SELECT })) as Record<string, string>[];
   const out: Record<string, number> = {};
-  for (const name of tables.map((r) => Object.values(r)[0]!).filter((n) => n !== 'sessions')) {
+  for (const name of await tablesExceptSessions()) {
     const [row] = (await db().query(`SELECT COUNT(*) AS n FROM \`${name}\``, {
       type: QueryTypes.SELECT,
     })) as { n: number }[];
