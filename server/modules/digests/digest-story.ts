@@ -5,6 +5,7 @@ import type {
   DigestPreviousWeek,
 } from '../../../shared/schemas/digests.schema';
 import type { CategoryFigures, ResolvedParameters } from '../../../shared/scoring';
+import { countOf } from '../../../shared/plural';
 
 /** A title short enough for a sentence; tables cut by measured width instead. */
 export function shortTitle(title: string, max = 48): string {
@@ -33,10 +34,6 @@ function agreement(rho: number | null): string {
   return 'disagree widely';
 }
 
-function plural(n: number, one: string, many = `${one}s`): string {
-  return `${n.toLocaleString('en-GB')} ${n === 1 ? one : many}`;
-}
-
 type StoryInput = {
   figures: CategoryFigures;
   params: ResolvedParameters;
@@ -48,7 +45,7 @@ type StoryInput = {
 export function buildStory({ figures: f, params, items, previous }: StoryInput): CategoryDigestData['story'] {
   const headline: string[] = [];
   headline.push(
-    `${plural(f.itemCount, 'item')} with ${plural(f.reviewCount, 'review')}; the typical rating C is ${params.C.toFixed(2)} stars and each item's mean is pulled towards it with the weight of ${params.m.toFixed(1)} reviews.`,
+    `${countOf(f.itemCount, 'item')} with ${countOf(f.reviewCount, 'review')}; the typical rating C is ${params.C.toFixed(2)} stars and each item's mean is pulled towards it with the weight of ${params.m.toFixed(1)} reviews.`,
   );
   headline.push(
     `The raw and smoothed orderings ${agreement(f.spearmanRho)} (Spearman's rho ${fixed(f.spearmanRho, 3)}); ${f.topOverlap.shared} of the top ${f.topOverlap.depth} are the same in both.`,
@@ -60,7 +57,7 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
   const lead = thinLeaders[0];
   if (lead) {
     headline.push(
-      `${named(lead)} is number ${lead.naiveRank} by raw mean on only ${plural(lead.n, 'review')}; the smoothed score places it ${lead.smoothedRank}.`,
+      `${named(lead)} is number ${lead.naiveRank} by raw mean on only ${countOf(lead.n, 'review')}; the smoothed score places it ${lead.smoothedRank}.`,
     );
   }
   const buried = items
@@ -68,7 +65,7 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
     .sort((a, b) => a.smoothedRank - b.smoothedRank)[0];
   if (buried) {
     headline.push(
-      `${named(buried)} ranks ${buried.smoothedRank} by smoothed score on ${plural(buried.n, 'review')}, but only ${buried.naiveRank} in a raw sort.`,
+      `${named(buried)} ranks ${buried.smoothedRank} by smoothed score on ${countOf(buried.n, 'review')}, but only ${buried.naiveRank} in a raw sort.`,
     );
   }
   const clusters = items.filter((i) => i.negativeCluster);
@@ -76,12 +73,12 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
     const first = [...clusters].sort((a, b) => (a.clusterPValue ?? 1) - (b.clusterPValue ?? 1))[0]!;
     const phrase = first.recurringPhrases[0];
     headline.push(
-      `${plural(clusters.length, 'item shows', 'items show')} a burst of one-star reviews; ${named(first)} leads${phrase ? `, with "${phrase.phrase}" in ${plural(phrase.count, 'review')}` : ''}.`,
+      `${countOf(clusters.length, 'item shows', 'items show')} a burst of one-star reviews; ${named(first)} leads${phrase ? `, with "${phrase.phrase}" in ${countOf(phrase.count, 'review')}` : ''}.`,
     );
   }
   if (f.staleCount > 0) {
     headline.push(
-      `${plural(f.staleCount, 'item has', 'items have')} had no new review for more than ${params.staleAfterDays} days.`,
+      `${countOf(f.staleCount, 'item has', 'items have')} had no new review for more than ${params.staleAfterDays} days.`,
     );
   }
 
@@ -96,7 +93,7 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
   changes.push(
     added === 0
       ? 'No new reviews arrived since last week.'
-      : `${plural(Math.abs(added), 'review')} ${added > 0 ? 'more' : 'fewer'} than last week (${previous.reviewCount.toLocaleString('en-GB')} then).`,
+      : `${countOf(Math.abs(added), 'review')} ${added > 0 ? 'more' : 'fewer'} than last week (${previous.reviewCount.toLocaleString('en-GB')} then).`,
   );
   if (f.spearmanRho !== null && previous.spearmanRho !== null) {
     const d = f.spearmanRho - previous.spearmanRho;
@@ -128,11 +125,11 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
   };
   if (up && up.smoothedMovement > 0) {
     changes.push(
-      `Biggest rise by smoothed score: ${title(up.sku)}, up ${plural(up.smoothedMovement, 'place')}.`,
+      `Biggest rise by smoothed score: ${title(up.sku)}, up ${countOf(up.smoothedMovement, 'place')}.`,
     );
   }
   if (down && down.smoothedMovement < 0) {
-    changes.push(`Biggest fall: ${title(down.sku)}, down ${plural(-down.smoothedMovement, 'place')}.`);
+    changes.push(`Biggest fall: ${title(down.sku)}, down ${countOf(-down.smoothedMovement, 'place')}.`);
   }
   const flagChange = (label: string, now: number, before: number): void => {
     if (now !== before) changes.push(`${label} went from ${before} to ${now}.`);
