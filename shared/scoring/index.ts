@@ -31,10 +31,11 @@ export { defaultSettings, priorMeanStrategies, priorWeightStrategies, resolveSet
 export type { PriorMeanStrategy, PriorWeightStrategy, ScoringSettings } from './settings';
 export { reviewsToPass, smoothedScore } from './smoothing';
 export {
+  binomialUpperTail,
+  conditionalRateTest,
   median,
   normalCdf,
   normalQuantile,
-  poissonUpperTail,
   wilsonInterval,
   wilsonLowerBound,
 } from './stats';

@@ -10,7 +10,7 @@ import {
 import { resolveSettings } from './settings';
 import type { ScoringSettings } from './settings';
 import { reviewsToPass } from './smoothing';
-import { poissonUpperTail } from './stats';
+import { conditionalRateTest } from './stats';
 import { DAY_MS, toColumns, toEpochMs } from './summary';
 import type {
   CategoryFigures,
@@ -175,10 +175,11 @@ export function scoreCategory(
     } else if (totalBase === 0) {
       clusterReason = 'no reviews in the baseline period';
     } else {
-      // Jeffreys-style +1/2 keeps an item with no one-star history from flagging on its first one.
-      const rate = (oneBase + 0.5) / (totalBase + 1);
-      clusterExpected = totalRecent * rate;
-      clusterPValue = poissonUpperTail(oneRecent, clusterExpected);
+      // Conditioning on all one-star reviews of both periods removes the unknown baseline rate, so the
+      // false-alarm rate stays at most clusterPValue whatever the item's own rate is.
+      const test = conditionalRateTest(oneRecent, totalRecent, oneBase, totalBase);
+      clusterExpected = test.expected;
+      clusterPValue = test.pValue;
       negativeCluster = oneRecent >= s.clusterMinCount && clusterPValue < s.clusterPValue;
       if (negativeCluster) {
         clusterCount++;

@@ -58,32 +58,96 @@ export function normalQuantile(p: number): number {
   return p < 0.5 ? x : -x;
 }
 
-/** P(X >= k) for X ~ Poisson(lambda). */
-export function poissonUpperTail(k: number, lambda: number): number {
-  if (k <= 0) return 1;
-  if (lambda <= 0) return 0;
-  let logFactK = 0;
-  for (let j = 2; j <= k; j++) logFactK += Math.log(j);
-  if (k > lambda) {
-    let term = Math.exp(-lambda + k * Math.log(lambda) - logFactK);
+const LN_2PI = Math.log(2 * Math.PI);
+
+/** log(n!) - log(sqrt(2 pi n) (n/e)^n), the error of Stirling's formula (Loader 2000). */
+function stirlingError(n: number): number {
+  if (n <= 15) {
+    let logFact = 0;
+    for (let j = 2; j <= n; j++) logFact += Math.log(j);
+    return logFact - 0.5 * (LN_2PI + Math.log(n)) - n * Math.log(n) + n;
+  }
+  const nn = n * n;
+  return (1 / 12 - (1 / 360 - (1 / 1260 - 1 / (1680 * nn)) / nn) / nn) / n;
+}
+
+/** x log(x / np) + np - x without cancellation when x is near np (Loader 2000). */
+function deviance(x: number, np: number): number {
+  if (Math.abs(x - np) < 0.1 * (x + np)) {
+    let v = (x - np) / (x + np);
+    let s = (x - np) * v;
+    let ej = 2 * x * v;
+    v *= v;
+    for (let j = 1; j < 1000; j++) {
+      ej *= v;
+      const next = s + ej / (2 * j + 1);
+      if (next === s) return s;
+      s = next;
+    }
+    return s;
+  }
+  return x * Math.log(x / np) + np - x;
+}
+
+/** log P(X = x) for X ~ Binomial(size, p), 0 < p < 1, by Loader's saddle-point form. */
+function binomialLogPmf(x: number, size: number, p: number): number {
+  const q = 1 - p;
+  if (x === 0) return size * Math.log1p(-p);
+  if (x === size) return size * Math.log(p);
+  const lc =
+    stirlingError(size) -
+    stirlingError(x) -
+    stirlingError(size - x) -
+    deviance(x, size * p) -
+    deviance(size - x, size * q);
+  return lc - 0.5 * (LN_2PI + Math.log(x) + Math.log1p(-x / size));
+}
+
+/**
+ * P(X >= x) for X ~ Binomial(size, p). The terms are summed outwards from x on the side of the
+ * smaller tail, starting from a log-space probability, so small tails keep their relative accuracy.
+ */
+export function binomialUpperTail(x: number, size: number, p: number): number {
+  if (x <= 0) return 1;
+  if (x > size || p <= 0) return 0;
+  if (p >= 1) return 1;
+  const odds = p / (1 - p);
+  if (x > size * p) {
+    let term = Math.exp(binomialLogPmf(x, size, p));
     let sum = term;
-    for (let j = k + 1; j < k + 10000; j++) {
-      term *= lambda / j;
+    for (let j = x; j < size; j++) {
+      term *= ((size - j) / (j + 1)) * odds;
       sum += term;
       if (term < 1e-17 * sum) break;
     }
     return Math.min(1, sum);
   }
-  // Lower sum P(X <= k-1) from its largest term downwards, then the complement.
-  const top = k - 1;
-  let term = Math.exp(-lambda + top * Math.log(lambda) - (logFactK - Math.log(k)));
+  // Lower tail P(X <= x-1) from its largest term downwards, then the complement.
+  let term = Math.exp(binomialLogPmf(x - 1, size, p));
   let sum = term;
-  for (let j = top; j >= 1; j--) {
-    term *= j / lambda;
+  for (let j = x - 1; j >= 1; j--) {
+    term *= j / ((size - j + 1) * odds);
     sum += term;
     if (term < 1e-17 * sum) break;
   }
   return Math.max(0, 1 - sum);
+}
+
+/**
+ * One-sided exact conditional test for a rise in a rate (Przyborowski & Wilenski 1940): with
+ * xWindow of nWindow reviews and xBase of nBase in the baseline one-star, and no change in the
+ * rate, xWindow given xWindow + xBase is Binomial(xWindow + xBase, nWindow / (nWindow + nBase)).
+ * Returns P(X >= xWindow) under that null and the expected count it centres on.
+ */
+export function conditionalRateTest(
+  xWindow: number,
+  nWindow: number,
+  xBase: number,
+  nBase: number,
+): { pValue: number; expected: number } {
+  const total = xWindow + xBase;
+  const share = nWindow + nBase > 0 ? nWindow / (nWindow + nBase) : 0;
+  return { pValue: binomialUpperTail(xWindow, total, share), expected: total * share };
 }
 
 export interface WilsonInterval {

@@ -115,8 +115,14 @@ export interface ItemResult {
   thin: boolean;
   negativeCluster: boolean | null;
   clusterReason: string | null;
+  /** One-star reviews in the cluster window. */
   clusterObserved: number | null;
+  /**
+   * One-star reviews the window would hold if the rate had not changed: the one-star reviews of
+   * window and baseline together times the window's share of their reviews.
+   */
   clusterExpected: number | null;
+  /** One-sided exact conditional p-value (Przyborowski & Wilenski 1940) of that many or more. */
   clusterPValue: number | null;
   recurringPhrases: { phrase: string; count: number }[];
   whatItTakes: WhatItTakesStatus;

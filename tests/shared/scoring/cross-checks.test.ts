@@ -3,7 +3,7 @@ import fc from 'fast-check';
 import { median as ssMedian, probit, sampleRankCorrelation } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { kendallTauB, spearmanRho } from '../../../shared/scoring/rank-stats';
-import { median, normalCdf, normalQuantile, poissonUpperTail } from '../../../shared/scoring/stats';
+import { median, normalCdf, normalQuantile } from '../../../shared/scoring/stats';
 
 /** O(n^2) tau-b straight from the definition (Kendall 1945), as a reference for the O(n log n) one. */
 function tauBByPairs(x: number[], y: number[]): number | null {
@@ -109,29 +109,5 @@ describe('rank correlations', () => {
       }),
       { numRuns: 500 },
     );
-  });
-});
-
-describe('Poisson upper tail', () => {
-  it('equals one minus the summed probability mass', () => {
-    fc.assert(
-      fc.property(
-        fc.integer({ min: 0, max: 40 }),
-        fc.double({ min: 0.01, max: 30, noNaN: true }),
-        (k, lambda) => {
-          let below = 0;
-          let term = Math.exp(-lambda);
-          for (let j = 0; j < k; j++) {
-            below += term;
-            term *= lambda / (j + 1);
-          }
-          expect(poissonUpperTail(k, lambda)).toBeCloseTo(1 - below, 10);
-        },
-      ),
-    );
-  });
-
-  it('gives P(X >= 3 | 0.5) = 1 - e^-0.5 (1 + 0.5 + 0.125)', () => {
-    expect(poissonUpperTail(3, 0.5)).toBeCloseTo(1 - Math.exp(-0.5) * 1.625, 14);
   });
 });
