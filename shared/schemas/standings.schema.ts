@@ -5,6 +5,12 @@ import { isoWeekSchema } from './iso-week.schema';
 export const weekQuerySchema = z.object({ week: isoWeekSchema.optional() });
 export type WeekQuery = z.infer<typeof weekQuerySchema>;
 
+/**
+ * New reviews that would lift an item above the next: a whole number that may pass 2^53, where
+ * z.number().int() would refuse it (see reviewsToPass in shared/scoring/smoothing.ts).
+ */
+const reviewsNeededSchema = z.number().min(1).multipleOf(1);
+
 /** Columns the standings may be sorted by; anything else is refused before it reaches SQL. */
 export const standingsSortColumns = [
   'smoothedRank',
@@ -92,7 +98,7 @@ export const standingsRowSchema = z.object({
   mover: z.boolean(),
   staleReason: z.string().nullable(),
   clusterReason: z.string().nullable(),
-  reviewsToPass: z.number().int().nullable(),
+  reviewsToPass: reviewsNeededSchema.nullable(),
 });
 export type StandingsRow = z.infer<typeof standingsRowSchema>;
 
@@ -194,7 +200,7 @@ export const itemDetailSchema = z.object({
       halfLifeDays: z.number(),
       whatItTakesStars: z.number(),
       above: z.object({ sku: z.string(), title: z.string().nullable(), smoothed: z.number() }).nullable(),
-      reviewsToPass: z.number().int().nullable(),
+      reviewsToPass: reviewsNeededSchema.nullable(),
     })
     .nullable(),
   helpfulReviews: z.array(

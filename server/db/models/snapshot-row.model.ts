@@ -76,7 +76,8 @@ export class SnapshotRow extends Model<InferAttributes<SnapshotRow>, InferCreati
         stale: { type: DataTypes.BOOLEAN, allowNull: true },
         thin: { type: DataTypes.BOOLEAN, allowNull: false },
         negativeCluster: { type: DataTypes.BOOLEAN, allowNull: true },
-        reviewsToPass: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        // A whole number that can pass 2^53: see migrations/20261202230000-widen-reviews-to-pass.ts.
+        reviewsToPass: { type: DataTypes.DOUBLE, allowNull: true },
         details: { type: DataTypes.JSON, allowNull: false },
       },
       { sequelize, tableName: 'snapshot_rows', timestamps: false },
