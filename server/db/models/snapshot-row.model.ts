@@ -51,13 +51,15 @@ export class SnapshotRow extends Model<InferAttributes<SnapshotRow>, InferCreati
   declare details: SnapshotRowDetails;
 
   static initModel(sequelize: Sequelize): void {
-    const dbl = { type: DataTypes.DOUBLE, allowNull: true };
+    // A fresh object per attribute: Sequelize writes each attribute's column name into its definition,
+    // so one shared object made every such attribute read the first one's column.
+    const dbl = () => ({ type: DataTypes.DOUBLE, allowNull: true });
     SnapshotRow.init(
       {
         snapshotId: { type: DataTypes.INTEGER.UNSIGNED, primaryKey: true },
         itemId: { type: DataTypes.INTEGER.UNSIGNED, primaryKey: true },
         n: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
-        rawMean: dbl,
+        rawMean: dbl(),
         smoothed: { type: DataTypes.DOUBLE, allowNull: false },
         lowerBound: { type: DataTypes.DOUBLE, allowNull: false },
         naiveRank: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
@@ -65,19 +67,19 @@ export class SnapshotRow extends Model<InferAttributes<SnapshotRow>, InferCreati
         drift: { type: DataTypes.INTEGER, allowNull: false },
         naiveMovement: { type: DataTypes.INTEGER, allowNull: true },
         smoothedMovement: { type: DataTypes.INTEGER, allowNull: true },
-        newestAgeDays: dbl,
-        medianAgeDays: dbl,
-        recentShare: dbl,
-        decayedMean: dbl,
-        effectiveCount: dbl,
-        helpfulMean: dbl,
-        reviewerMean: dbl,
-        oneStarShare: dbl,
+        newestAgeDays: dbl(),
+        medianAgeDays: dbl(),
+        recentShare: dbl(),
+        decayedMean: dbl(),
+        effectiveCount: dbl(),
+        helpfulMean: dbl(),
+        reviewerMean: dbl(),
+        oneStarShare: dbl(),
         stale: { type: DataTypes.BOOLEAN, allowNull: true },
         thin: { type: DataTypes.BOOLEAN, allowNull: false },
         negativeCluster: { type: DataTypes.BOOLEAN, allowNull: true },
         // A whole number that can pass 2^53: see migrations/20261202230000-widen-reviews-to-pass.ts.
-        reviewsToPass: { type: DataTypes.DOUBLE, allowNull: true },
+        reviewsToPass: dbl(),
         details: { type: DataTypes.JSON, allowNull: false },
       },
       { sequelize, tableName: 'snapshot_rows', timestamps: false },

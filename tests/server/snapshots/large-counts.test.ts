@@ -63,6 +63,11 @@ describe('what it would take for items with the largest counts an import accepts
 
     const rows = await SnapshotRow.findAll({ where: { snapshotId: outcome.snapshotId } });
     expect(rows.map((r) => r.reviewsToPass).sort()).toEqual([expected, null].sort());
+    // Each DOUBLE attribute reads its own column: the means are 5 and 4, the ages unknown.
+    expect(rows.map((r) => [r.rawMean, r.newestAgeDays, r.oneStarShare]).sort()).toEqual([
+      [4, null, null],
+      [5, null, null],
+    ]);
 
     const res = await analyst.get('/api/categories/huge-counts/items/HC-2?week=2026-W45').expect(200);
     expect((res.body as { current: { reviewsToPass: number } }).current.reviewsToPass).toBe(expected);
