@@ -1,6 +1,7 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { scoreCategory } from '../../../shared/scoring/score-category';
-import { reviewsToPass } from '../../../shared/scoring/smoothing';
+import { reviewsToPass, smoothedScore } from '../../../shared/scoring/smoothing';
 
 /*
  * Checks by exact rational arithmetic, independent of the engine's own conversion: a finite double is
@@ -112,5 +113,30 @@ describe('what it would take, in exact rational arithmetic', () => {
     expect(second.whatItTakes).toBe('reviews');
     const c: Case = { m: 1, C: 4.5, n: 1e9, S: 4e9, above: second.aboveScore!, v: 5 };
     expect(BigInt(second.reviewsToPass!)).toBe(exactK(c));
+  });
+
+  it('finds the smallest k that lifts the item above, or none when v <= s_above (DESIGN §4.7)', () => {
+    fc.assert(
+      fc.property(
+        fc.double({ min: 0, max: 1e6, noNaN: true }),
+        fc.double({ min: 1, max: 5, noNaN: true }),
+        fc.integer({ min: 0, max: 2 ** 40 }),
+        fc.double({ min: 1, max: 5, noNaN: true }),
+        fc.double({ min: 0, max: 2, noNaN: true }),
+        fc.integer({ min: 1, max: 5 }),
+        (m, C, n, r, gap, v) => {
+          const c: Case = { m, C, n, S: n * r, above: Math.min(5, smoothedScore(m, C, n, n * r) + gap), v };
+          const k = run(c);
+          if (v <= c.above) {
+            expect(k).toBeNull();
+            return;
+          }
+          expect(k).not.toBeNull();
+          expect(lifts(c, BigInt(k!))).toBe(true);
+          if (k! <= Number.MAX_SAFE_INTEGER && k! > 1) expect(lifts(c, BigInt(k!) - 1n)).toBe(false);
+        },
+      ),
+      { numRuns: 300 },
+    );
   });
 });
