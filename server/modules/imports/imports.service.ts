@@ -7,7 +7,8 @@ import {
   CrossRowRules,
   createAggregateJsonRowSchema,
   createReviewJsonRowSchema,
-  importLimits,
+  nulProblems,
+  titleFits,
   titleMissingReason,
   type AggregateRow,
   type ImportKind,
@@ -453,14 +454,11 @@ export function validateJsonRows<K extends ImportKind>(
     const cells = (input && typeof input === 'object' ? input : {}) as Record<string, unknown>;
     const category = typeof cells.category === 'string' ? cells.category.trim().toLowerCase() : '';
     const sku = typeof cells.sku === 'string' ? cells.sku.trim() : '';
-    const titleCell = typeof cells.title === 'string' ? cells.title.trim() : undefined;
+    const titleCell = typeof cells.title === 'string' ? cells.title.trim().normalize('NFC') : undefined;
     const title = sku
-      ? rules.resolveTitle(
-          category,
-          sku,
-          titleCell && titleCell.length <= importLimits.titleMax ? titleCell : undefined,
-        )
+      ? rules.resolveTitle(category, sku, titleCell && titleFits(titleCell) ? titleCell : undefined)
       : undefined;
+    problems.push(...nulProblems(cells));
     if (!result.success) {
       for (const issue of result.error.issues)
         problems.push({
