@@ -3,6 +3,7 @@ import type { ImportBatchRecord } from '../../../../shared/schemas/imports-api.s
 import { importModeLabels } from '../../../../shared/schemas/imports-api.schema';
 import { EmptyState } from '../../../components/ui/status';
 import { errorsCsvUrl } from '../api/get-import';
+import { rejectedDownload } from '../outcome';
 import { StatusBadge } from './import-status';
 
 const sourceWords: Record<ImportBatchRecord['source'], string> = {
@@ -62,7 +63,10 @@ export function HistoryTable({ batches }: { batches: ImportBatchRecord[] }) {
                 {b.rowsRejected > 0 ? (
                   <a className="font-semibold text-coral-500 underline" href={errorsCsvUrl(b.id)} download>
                     {b.rowsRejected.toLocaleString('en')}
-                    <span className="sr-only"> rejected rows, download as CSV</span>
+                    <span className="sr-only">
+                      {' '}
+                      rejected rows; {rejectedDownload(b.rowsRejected).label.replace(/^Download/, 'download')}
+                    </span>
                   </a>
                 ) : (
                   0
@@ -71,7 +75,7 @@ export function HistoryTable({ batches }: { batches: ImportBatchRecord[] }) {
               <td className="px-3 py-2 text-right tabular-nums">{b.rowsInserted.toLocaleString('en')}</td>
               <td className="px-3 py-2 text-right tabular-nums">{b.rowsUpdated.toLocaleString('en')}</td>
               <td className="px-3 py-2" title={b.errorMessage ?? undefined}>
-                <StatusBadge status={b.status} />
+                <StatusBadge batch={b} />
               </td>
             </tr>
           ))}
