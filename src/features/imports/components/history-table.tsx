@@ -20,8 +20,9 @@ export function HistoryTable({ batches }: { batches: ImportBatchRecord[] }) {
         Files you import and data sent with API tokens appear here.
       </EmptyState>
     );
+  // relative: the sr-only texts inside are positioned; without it they widen the page at 390 px.
   return (
-    <div className="overflow-x-auto rounded-lg border border-ink-100 bg-white">
+    <div className="relative overflow-x-auto rounded-lg border border-ink-100 bg-white">
       <table className="w-full text-sm">
         <caption className="sr-only">Import history, newest first</caption>
         <thead className="bg-ink-50 text-left text-ink-700">
@@ -65,7 +66,10 @@ export function HistoryTable({ batches }: { batches: ImportBatchRecord[] }) {
                     {b.rowsRejected.toLocaleString('en')}
                     <span className="sr-only">
                       {' '}
-                      rejected rows; {rejectedDownload(b.rowsRejected).label.replace(/^Download/, 'download')}
+                      rejected rows, download as CSV
+                      {rejectedDownload(b.rowsRejected).kept < b.rowsRejected
+                        ? ` (the first ${rejectedDownload(b.rowsRejected).kept.toLocaleString('en-GB')})`
+                        : ''}
                     </span>
                   </a>
                 ) : (

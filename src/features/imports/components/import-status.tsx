@@ -25,7 +25,7 @@ export function StatusBadge({ batch }: { batch: ImportBatchRecord }) {
   const tone = nothing ? statusTone.rejected : statusTone[batch.status];
   return (
     <span
-      className={`inline-block rounded-full px-2 py-0.5 text-xs font-semibold ${tone}`}
+      className={`inline-block rounded-full px-2 py-0.5 text-xs font-semibold whitespace-nowrap ${tone}`}
       data-testid="import-status-badge"
     >
       {nothing ? 'Nothing imported' : statusWords[batch.status]}
@@ -47,7 +47,10 @@ function Figure({
   return (
     <div className="rounded-md bg-paper px-3 py-2" title={note}>
       <dt className="text-xs tracking-wide text-ink-500 uppercase">{label}</dt>
-      <dd className={`text-2xl font-bold tabular-nums ${tone}`} data-testid={`result-${label.toLowerCase()}`}>
+      <dd
+        className={`text-2xl font-bold tabular-nums ${tone}`}
+        data-testid={`result-${label.toLowerCase().replace(/ /g, '-')}`}
+      >
         {value.toLocaleString('en')}
       </dd>
       {note ? <dd className="mt-0.5 text-xs text-ink-500">{note}</dd> : null}
@@ -101,7 +104,11 @@ export function ImportStatus({ batch }: { batch: ImportBatchRecord }) {
       {/* Read = accepted + rejected + not written; accepted = new + updated + unchanged. */}
       <dl className="mt-4 grid grid-cols-2 gap-2 sm:grid-cols-3 lg:grid-cols-7">
         <Figure label="Read" value={batch.rowsRead} note="rows, blank lines not counted" />
-        <Figure label="Accepted" value={batch.rowsAccepted} tone="text-kelp-500" />
+        <Figure
+          label="Accepted"
+          value={batch.rowsAccepted}
+          tone={batch.rowsAccepted ? 'text-kelp-500' : undefined}
+        />
         <Figure
           label="Rejected"
           value={batch.rowsRejected}

@@ -36,7 +36,7 @@ export function PreviewTable({ preview }: { preview: ImportPreview }) {
           {w}
         </p>
       ))}
-      <div className="max-h-[28rem] overflow-auto rounded-lg border border-ink-100 bg-white">
+      <div className="relative max-h-[28rem] overflow-auto rounded-lg border border-ink-100 bg-white">
         <table className="w-full text-left text-xs">
           <caption className="sr-only">Preview of the first rows of the file</caption>
           <thead className="sticky top-0 bg-ink-50 text-ink-700">
