@@ -164,3 +164,29 @@ describe('NUL through the ingest API', () => {
     expect(stored.map((r) => r.k)).toEqual(['api-nul-2']);
   });
 });
+
+describe('the rejected-rows download of a large import', () => {
+  it('holds the first 10,000 rejected rows and says so in its name', async () => {
+    const header =
+      'review_id,sku,title,category,stars,reviewed_at,helpful_yes,helpful_no,reviewer_id,reviewer_score,verified,text';
+    const lines = Array.from(
+      { length: 10_005 },
+      (_, i) => `cap-${i},KB-CAP,Kettle,kettles-and-brewers,9,2026-05-01,0,0,,,,x`,
+    );
+    const res = await ops
+      .post('/api/imports')
+      .set('x-csrf-token', ops.csrf)
+      .field('kind', 'reviews')
+      .field('mode', 'valid_rows')
+      .attach('file', Buffer.from([header, ...lines].join('\n') + '\n'), 'many-wrong.csv')
+      .expect(202);
+    const batch = await finished((res.body as ImportBatchRecord).id);
+    expect(batch.rowsRejected).toBe(10_005);
+    const csv = await ops.get(`/api/imports/${batch.id}/errors.csv`).expect(200);
+    expect(csv.headers['content-disposition']).toBe(
+      `attachment; filename="ballast-import-${batch.id}-rejected-rows-first-10000-of-10005.csv"`,
+    );
+    // The header and 10,000 rows, each on one line (no text here holds a line break).
+    expect(csv.text.trimEnd().split('\r\n')).toHaveLength(10_001);
+  }, 120_000);
+});
