@@ -1,14 +1,36 @@
 import { createReadStream } from 'node:fs';
+import { Readable } from 'node:stream';
 import { mkdtemp, rm, stat } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { syntheticReviewRows, writeReviewCsv } from '../demo/scenario-csv';
-import { parseImport } from '../modules/imports/import-parser';
+import { ImportFileError, collectImport, parseImport } from '../modules/imports/import-parser';
 
 const rowCount = 1_000_000;
 
+/** Input that used to cost time in the square of its length: how long it takes to be refused. */
+async function hostile(label: string, text: string): Promise<void> {
+  const bytes = Buffer.from(text);
+  // 64 KB chunks, as an upload arrives.
+  const chunks: Buffer[] = [];
+  for (let i = 0; i < bytes.length; i += 64 * 1024) chunks.push(bytes.subarray(i, i + 64 * 1024));
+  const started = process.hrtime.bigint();
+  const outcome = await collectImport(Readable.from(chunks), 'reviews', { now: new Date() }).then(
+    () => 'accepted',
+    (err: unknown) =>
+      err instanceof ImportFileError ? `refused (${err.message.length}-character message)` : String(err),
+  );
+  const ms = Number(process.hrtime.bigint() - started) / 1e6;
+  console.log(`${label}: ${outcome} in ${ms.toFixed(1)} ms`);
+}
+
 /** Parse speed and peak memory of the review importer alone (no database), on a 1,000,000-row file. */
 export async function run(): Promise<void> {
+  await hostile('a 200 KB line with no line break', 'x'.repeat(200 * 1024));
+  await hostile(
+    'a header of 100,000 columns',
+    Array.from({ length: 100_000 }, (_, i) => `column_${i}`).join(',') + '\n',
+  );
   const dir = await mkdtemp(join(tmpdir(), 'ballast-import-bench-'));
   const file = join(dir, 'reviews.csv');
   try {

@@ -23,6 +23,74 @@ export const importLimits = {
   jsonRowsMax: 5_000,
 } as const;
 
+const graphemes = new Intl.Segmenter(undefined, { granularity: 'grapheme' });
+
+/**
+ * Yields where each grapheme cluster ends, reading the text in short windows: V8's segmenter costs time in
+ * proportion to the whole string at every step, so one pass over a long text would be quadratic.
+ */
+function* graphemeEnds(text: string): Generator<number> {
+  let start = 0;
+  let width = 256;
+  while (start < text.length) {
+    let end = Math.min(text.length, start + width);
+    // End between whole code points: half an emoji would end the cluster before it too early.
+    if (end < text.length && /[\uD800-\uDBFF]/.test(text[end - 1]!)) end--;
+    const segments = [...graphemes.segment(text.slice(start, end))];
+    // The window's last cluster may go on past it, unless the window reaches the end of the text.
+    const complete = end === text.length ? segments.length : segments.length - 1;
+    if (complete === 0) {
+      width *= 2;
+      continue;
+    }
+    for (let i = 0; i < complete; i++) yield start + segments[i]!.index + segments[i]!.segment.length;
+    start += segments[complete - 1]!.index + segments[complete - 1]!.segment.length;
+    width = 256;
+  }
+}
+
+/** Length as a person counts it: grapheme clusters, so one emoji or one accented letter is one character. */
+export function graphemeLength(text: string): number {
+  // Plain ASCII without CR (CRLF is the one ASCII cluster of two units) needs no segmenting.
+  if (text.length <= 1 || !/[^ -~\t\n]/.test(text)) return text.length;
+  let n = 0;
+  for (const _ of graphemeEnds(text)) n++;
+  return n;
+}
+
+/** The first `max` graphemes of a text; never splits an emoji or a letter from its accent. */
+export function cutGraphemes(text: string, max: number): string {
+  if (text.length <= max) return text;
+  let n = 0;
+  for (const end of graphemeEnds(text)) if (++n === max) return text.slice(0, end);
+  return text;
+}
+
+/** The items table holds 500 code points; a title of 500 family emoji has more than that. */
+function codePointsFit(text: string, max: number): boolean {
+  if (text.length <= max) return true;
+  let n = 0;
+  for (const _ of text) if (++n > max) return false;
+  return true;
+}
+
+/** Whether a trimmed title is within the limit (the schema's two rules on titles). */
+export function titleFits(title: string): boolean {
+  return codePointsFit(title, importLimits.titleMax);
+}
+
+/** NUL is not text: Ballast refuses it in every field, whether the row came as CSV or through the API. */
+export function nulReason(field: string): string {
+  return `${field} contains a NUL character (U+0000), which is not text; remove it and send the row again`;
+}
+
+/** Every field of a row (CSV cells or JSON values) that holds a NUL, worded for the row's error. */
+export function nulProblems(cells: Record<string, unknown>): { column: string; message: string }[] {
+  return Object.entries(cells)
+    .filter(([, value]) => typeof value === 'string' && value.includes('\0'))
+    .map(([column]) => ({ column, message: nulReason(column) }));
+}
+
 export interface ImportColumn {
   name: string;
   required: boolean;
@@ -164,10 +232,22 @@ const categoryField = z
   .max(importLimits.categoryMax, { error: `category is longer than ${importLimits.categoryMax} characters` })
   .regex(slugPattern, { error: 'category must be a slug: letters, digits and single hyphens' });
 
+// Titles are stored in NFC, so an accent typed as a separate mark counts, and is kept, as one letter.
 const optionalTitle = z
   .string()
   .trim()
-  .max(importLimits.titleMax, { error: `title is longer than ${importLimits.titleMax} characters` })
+  .transform((t) => t.normalize('NFC'))
+  .superRefine((t, ctx) => {
+    if (graphemeLength(t) > importLimits.titleMax)
+      ctx.addIssue({ code: 'custom', message: `title is longer than ${importLimits.titleMax} characters` });
+    else if (!codePointsFit(t, importLimits.titleMax))
+      ctx.addIssue({
+        code: 'custom',
+        message:
+          `title is too long to store: its emoji or accented letters are built from more than ` +
+          `${importLimits.titleMax} Unicode code points`,
+      });
+  })
   .optional()
   .transform((value) => (value ? value : undefined));
 
@@ -183,7 +263,7 @@ const optionalId = (column: string) =>
 const textField = z
   .string()
   .nullish()
-  .transform((value) => (value && value.trim() !== '' ? value.slice(0, importLimits.textMax) : null));
+  .transform((value) => (value && value.trim() !== '' ? cutGraphemes(value, importLimits.textMax) : null));
 
 // ---------------------------------------------------------------- CSV cells (strings in, typed out)
 
@@ -348,8 +428,8 @@ export function fastReviewCsvRow(cells: Record<string, string>, clock: Clock): R
   if (!slugPattern.test(category)) return null;
   let title: string | undefined;
   if (cells.title !== undefined) {
-    const t = cells.title.trim();
-    if (t.length > importLimits.titleMax) return null;
+    const t = cells.title.trim().normalize('NFC');
+    if (!codePointsFit(t, importLimits.titleMax)) return null;
     title = t === '' ? undefined : t;
   }
   const stars = fastWhole(cells.stars, 1, 5);
@@ -383,7 +463,7 @@ export function fastReviewCsvRow(cells: Record<string, string>, clock: Clock): R
     verified = booleanWords[word]!;
   }
   const body = cells.text;
-  const text = body !== undefined && body.trim() !== '' ? body.slice(0, importLimits.textMax) : null;
+  const text = body !== undefined && body.trim() !== '' ? cutGraphemes(body, importLimits.textMax) : null;
   return {
     reviewId,
     sku,
@@ -676,6 +756,9 @@ function ingestRows<T extends ReviewRowDraft | AggregateRowDraft, R>(kind: Impor
       const rules = new CrossRowRules(kind);
       const out: R[] = [];
       rows.forEach((r, index) => {
+        for (const [key, value] of Object.entries(r))
+          if (typeof value === 'string' && value.includes('\0'))
+            ctx.addIssue({ code: 'custom', path: [index, key], message: nulReason(key) });
         const first = rules.duplicateOf(rules.duplicateKey(r), index);
         if (first !== undefined)
           ctx.addIssue({ code: 'custom', path: [index], message: rules.duplicateReason(first, true) });

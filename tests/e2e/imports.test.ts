@@ -31,7 +31,7 @@ afterAll(async () => {
 describe('importing a file through the browser', () => {
   it('previews the file with mistakes, imports the valid rows and shows 6 accepted and 7 rejected', async () => {
     const ops = demoAccounts.find((a) => a.role === 'ops')!;
-    const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
     const page = await context.newPage();
     const consoleErrors: string[] = [];
     page.on('console', (msg) => {
@@ -53,19 +53,50 @@ describe('importing a file through the browser', () => {
     const table = page.getByRole('table', { name: 'Preview of the first rows of the file' });
     await expect.poll(() => table.getByRole('row').count()).toBe(14);
     expect(await table.getByText('stars must be a whole number from 1 to 5 (got "6")').count()).toBe(1);
+    // The bad rows show what they held, as text.
+    await expect.poll(() => table.getByTestId('preview-raw').count()).toBe(7);
+    expect(await table.getByTestId('preview-raw').first().textContent()).toContain(',6,');
 
     await page.getByRole('radio', { name: /Import the valid rows/ }).check();
     await page.getByRole('button', { name: 'Import reviews.with-mistakes.sample.csv' }).click();
     await expect
       .poll(() => page.getByTestId('import-outcome').textContent(), { timeout: 20_000 })
-      .toBe('Done: 13 rows read, 6 accepted, 7 rejected.');
+      .toBe('Done: 6 rows of 13 imported (6 new); 7 rows rejected.');
     expect(await page.getByTestId('result-accepted').textContent()).toBe('6');
     expect(await page.getByTestId('result-rejected').textContent()).toBe('7');
+    expect(await page.getByTestId('result-not-written').textContent()).toBe('0');
+    expect(await page.getByTestId('result-unchanged').textContent()).toBe('0');
     await page.getByRole('link', { name: 'Download the 7 rejected rows (CSV)' }).waitFor();
     const history = page.getByRole('table', { name: 'Import history, newest first' });
     await history.getByText('reviews.with-mistakes.sample.csv').waitFor();
 
     await page.screenshot({ path: path.join(screenshotDir, 'imports.png'), fullPage: true });
+
+    // A file whose every row is wrong: nothing was imported, and the screen says so.
+    const header =
+      'review_id,sku,title,category,stars,reviewed_at,helpful_yes,helpful_no,reviewer_id,reviewer_score,verified,text';
+    const bad = [1, 2, 3].map(
+      (i) => `zz-${i},KB-101,Kettle,kettles-and-brewers,${5 + i},2026-05-01,0,0,,,,<b>bold</b>`,
+    );
+    await page.getByLabel('Choose a CSV file to import').setInputFiles({
+      name: 'all-wrong.csv',
+      mimeType: 'text/csv',
+      buffer: Buffer.from([header, ...bad].join('\n') + '\n'),
+    });
+    await expect.poll(() => page.getByTestId('preview-summary').textContent()).toContain('3 with mistakes');
+    // Markup in a bad row is shown as the characters it is, never run.
+    expect(await page.getByTestId('preview-raw').first().textContent()).toContain('<b>bold</b>');
+    await page.getByRole('radio', { name: /Import the valid rows/ }).check();
+    await page.getByRole('button', { name: 'Import all-wrong.csv' }).click();
+    await expect
+      .poll(() => page.getByTestId('import-outcome').textContent(), { timeout: 20_000 })
+      .toBe('Nothing was imported: all 3 rows read have mistakes.');
+    expect(await page.getByTestId('import-status-badge').first().textContent()).toBe('Nothing imported');
+    await page.screenshot({ path: path.join(screenshotDir, 'imports-nothing-1440.png'), fullPage: true });
+    await page.setViewportSize({ width: 390, height: 844 });
+    await page.screenshot({ path: path.join(screenshotDir, 'imports-nothing-390.png'), fullPage: true });
+    // No page-level sideways scroll: the tables scroll inside their own frames.
+    expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
     expect(consoleErrors, 'no console errors').toEqual([]);
     await context.close();
   });

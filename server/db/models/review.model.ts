@@ -43,7 +43,7 @@ export class Review extends Model<InferAttributes<Review>, InferCreationAttribut
           },
         },
         verified: { type: DataTypes.BOOLEAN, allowNull: true },
-        body: { type: DataTypes.TEXT, allowNull: true },
+        body: { type: DataTypes.TEXT('medium'), allowNull: true },
         importBatchId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,

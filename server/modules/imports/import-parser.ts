@@ -7,8 +7,11 @@ import {
   fastReviewCsvRow,
   createAggregateCsvRowSchema,
   createReviewCsvRowSchema,
+  cutGraphemes,
   histogramColumns,
   importLimits,
+  nulProblems,
+  titleFits,
   titleMissingReason,
 } from '../../../shared/schemas/import.schema';
 import type {
@@ -22,9 +25,13 @@ import type {
 
 export const defaultMaxBytes = 50 * 1024 * 1024;
 /** Beyond this a record is not a review but a broken file (e.g. a stray quote swallowing rows). */
-const maxRecordChars = 1_000_000;
-const rawExcerptChars = 1_000;
+const maxRecordChars = 5_000_000;
+/** Error messages and rejected rows quote at most this much of what was sent. */
+const rawExcerptChars = 200;
+/** A header of Ballast's columns is a few hundred characters; a first line longer than this is not one. */
 const headerSniffChars = 64 * 1024;
+/** Bytes looked at to tell the encoding (UTF-16 without a byte order mark shows as every other byte 0). */
+const encodingSniffBytes = 512;
 
 export type ImportFileErrorCode =
   | 'empty_file'
@@ -87,9 +94,34 @@ const magicNumbers: { bytes: number[]; what: string; code?: ImportFileErrorCode 
   { bytes: [0xd0, 0xcf, 0x11, 0xe0], what: 'an old Excel workbook (.xls)' },
   { bytes: [0x25, 0x50, 0x44, 0x46, 0x2d], what: 'a PDF document' },
   { bytes: [0x1f, 0x8b], what: 'a gzip archive' },
-  { bytes: [0xff, 0xfe], what: 'a UTF-16 text file', code: 'not_utf8' },
-  { bytes: [0xfe, 0xff], what: 'a UTF-16 text file', code: 'not_utf8' },
 ];
+
+type Encoding = 'utf-8' | 'utf-16le' | 'utf-16be';
+const encodingNames: Record<Encoding, string> = {
+  'utf-8': 'UTF-8',
+  'utf-16le': 'UTF-16 (little-endian)',
+  'utf-16be': 'UTF-16 (big-endian)',
+};
+
+/**
+ * UTF-8 unless a UTF-16 byte order mark says otherwise, or the text is mostly ASCII written as UTF-16
+ * without one (as some exports do): then one byte of nearly every pair is 0, always on the same side.
+ */
+export function sniffEncoding(head: Buffer): Encoding {
+  if (head[0] === 0xff && head[1] === 0xfe) return 'utf-16le';
+  if (head[0] === 0xfe && head[1] === 0xff) return 'utf-16be';
+  const pairs = Math.floor(Math.min(head.length, encodingSniffBytes) / 2);
+  if (pairs < 2) return 'utf-8';
+  let zeroEven = 0;
+  let zeroOdd = 0;
+  for (let i = 0; i < pairs; i++) {
+    if (head[2 * i] === 0) zeroEven++;
+    if (head[2 * i + 1] === 0) zeroOdd++;
+  }
+  if (zeroOdd >= pairs * 0.6 && zeroEven === 0) return 'utf-16le';
+  if (zeroEven >= pairs * 0.6 && zeroOdd === 0) return 'utf-16be';
+  return 'utf-8';
+}
 
 const saveAsCsv = 'Save it as "CSV UTF-8 (comma delimited)" and upload that file.';
 
@@ -104,22 +136,33 @@ function sniffMagic(head: Buffer): void {
 }
 
 /**
- * Bytes to text: enforces the size limit, refuses binary content and invalid UTF-8, drops a BOM and turns
- * CRLF into LF (so `\r` never splits a chunk's line count).
+ * Bytes to text: enforces the size limit, refuses binary formats and text that is not valid in its encoding
+ * (UTF-8, or UTF-16 told by its byte order mark or its zero bytes), drops a BOM and turns every line end
+ * (CRLF, LF, or a bare CR as older spreadsheet programs write) into LF, so that line numbers count as an
+ * editor shows them. A CR inside a quoted value becomes LF too.
  */
 async function* decodeText(source: Readable, maxBytes: number, counters: { bytes: number }) {
-  const decoder = new TextDecoder('utf-8', { fatal: true, ignoreBOM: false });
+  let decoder: TextDecoder | null = null;
+  let encoding: Encoding = 'utf-8';
   let head: Buffer | null = Buffer.alloc(0);
   let lines = 1;
   let pendingCr = false;
   const decode = (bytes: Buffer | undefined): string => {
     try {
-      return bytes ? decoder.decode(bytes, { stream: true }) : decoder.decode();
+      return bytes ? decoder!.decode(bytes, { stream: true }) : decoder!.decode();
     } catch {
+      // Find the line of the first bad byte with a forgiving decoder, which marks it U+FFFD.
+      const loose = bytes ? new TextDecoder(encoding).decode(bytes).replace(/\r\n?/g, '\n') : '';
+      const bad = loose.indexOf('\uFFFD');
+      if (bad > 0)
+        for (let i = loose.indexOf('\n'); i !== -1 && i < bad; i = loose.indexOf('\n', i + 1)) lines++;
       throw new ImportFileError(
         'not_utf8',
-        `The file is not valid UTF-8 (the first bad byte is on or after line ${lines}); it was probably saved ` +
-          `in a legacy encoding such as Latin-1 or Windows-1252. ${saveAsCsv}`,
+        encoding === 'utf-8'
+          ? `The file is not valid UTF-8 (the first bad byte is on or after line ${lines}); it was probably saved ` +
+              `in a legacy encoding such as Latin-1 or Windows-1252. ${saveAsCsv}`
+          : `The file looks like ${encodingNames[encoding]} text but is not valid ${encodingNames[encoding]} ` +
+              `on or after line ${lines}. ${saveAsCsv}`,
         lines,
       );
     }
@@ -128,9 +171,14 @@ async function* decodeText(source: Readable, maxBytes: number, counters: { bytes
     let out = pendingCr ? '\r' + text : text;
     pendingCr = out.endsWith('\r');
     if (pendingCr) out = out.slice(0, -1);
-    out = out.replace(/\r\n/g, '\n');
+    out = out.replace(/\r\n?/g, '\n');
     for (let i = out.indexOf('\n'); i !== -1; i = out.indexOf('\n', i + 1)) lines++;
     return out;
+  };
+  const start = (bytes: Buffer): void => {
+    sniffMagic(bytes);
+    encoding = sniffEncoding(bytes);
+    decoder = new TextDecoder(encoding, { fatal: true, ignoreBOM: false });
   };
 
   for await (const chunk of source) {
@@ -143,32 +191,25 @@ async function* decodeText(source: Readable, maxBytes: number, counters: { bytes
       );
     if (head) {
       head = Buffer.concat([head, bytes]);
-      if (head.length < 8) continue;
-      sniffMagic(head);
+      if (head.length < encodingSniffBytes) continue;
       const pending = head;
       head = null;
-      yield* checked(pending);
+      start(pending);
+      const text = emit(decode(pending));
+      if (text) yield text;
     } else {
-      yield* checked(bytes);
+      const text = emit(decode(bytes));
+      if (text) yield text;
     }
   }
-  if (head && head.length > 0) {
-    sniffMagic(head);
-    yield* checked(head);
-  }
-  const tail = emit(decode(undefined)) + (pendingCr ? '\r' : '');
-  if (tail) yield tail;
-
-  function* checked(bytes: Buffer) {
-    const nul = bytes.indexOf(0);
-    if (nul !== -1)
-      throw new ImportFileError(
-        'binary_file',
-        `The file contains binary data (a NUL byte after about line ${lines}); it is not a CSV text file. ${saveAsCsv}`,
-      );
-    const text = emit(decode(bytes));
+  if (head) {
+    if (head.length === 0) return;
+    start(head);
+    const text = emit(decode(head));
     if (text) yield text;
   }
+  const tail = emit(decode(undefined)) + (pendingCr ? '\n' : '');
+  if (tail) yield tail;
 }
 
 function formatBytes(bytes: number): string {
@@ -190,8 +231,24 @@ export function sniffDelimiter(headerLine: string): Delimiter {
 
 const delimiterNames: Record<Delimiter, string> = { ',': 'comma', ';': 'semicolon', '\t': 'tab' };
 
+/** Characters that take no space on screen (zero-width space, BOM, word joiner, direction marks…). */
+const invisible = /[\p{Cf}]/gu;
+
 function normaliseHeader(cell: string): string {
-  return cell.trim().toLowerCase();
+  return cell.replace(invisible, '').trim().toLowerCase();
+}
+
+function describeInvisible(cell: string): string | null {
+  const found = [...new Set(cell.match(invisible) ?? [])];
+  if (found.length === 0) return null;
+  return found.map((ch) => 'U+' + ch.codePointAt(0)!.toString(16).toUpperCase().padStart(4, '0')).join(', ');
+}
+
+function shortText(value: string, max = 40): string {
+  // Cut by graphemes: half an emoji (a lone surrogate) could not even be stored.
+  if (value.length <= max) return value;
+  const cut = cutGraphemes(value.slice(0, max * 16), max).replace(/[\uD800-\uDBFF]$/, '');
+  return cut.length < value.length ? cut + '…' : cut;
 }
 
 function mapHeader(kind: ImportKind, cells: string[]): { mapping: HeaderMapping[]; warnings: string[] } {
@@ -211,13 +268,16 @@ function mapHeader(kind: ImportKind, cells: string[]): { mapping: HeaderMapping[
       }
       throw new ImportFileError('unknown_column', `Column ${position} of the header has no name.`, 1);
     }
+    const hidden = describeInvisible(cell);
     if (!known.some((c) => c.name === name)) {
       const hint = columnsByKind[otherKind].some((c) => c.name === name)
         ? ` It belongs to the ${otherKind} format: is this an ${otherKind} file?`
         : '';
       throw new ImportFileError(
         'unknown_column',
-        `Unknown column "${cell.trim()}" (column ${position}).${hint} The ${kind} format has the columns: ` +
+        `Unknown column "${shortText(name)}" (column ${position}` +
+          `${hidden ? `, which also holds the invisible character ${hidden}` : ''}).${hint} ` +
+          `The ${kind} format has the columns: ` +
           `${known.map((c) => c.name).join(', ')}.`,
         1,
       );
@@ -230,6 +290,10 @@ function mapHeader(kind: ImportKind, cells: string[]): { mapping: HeaderMapping[
         1,
       );
     seen.set(name, position);
+    if (hidden)
+      warnings.push(
+        `Column ${position} is "${name}" with the invisible character ${hidden}; it was read as ${name}.`,
+      );
     mapping.push({ position, header: cell, column: name });
   });
   const missing = known.filter((c) => c.required && !seen.has(c.name)).map((c) => c.name);
@@ -255,12 +319,13 @@ function mapHeader(kind: ImportKind, cells: string[]): { mapping: HeaderMapping[
 
 function excerpt(raw: string): string {
   const text = raw.endsWith('\n') ? raw.slice(0, -1) : raw;
-  return text.length > rawExcerptChars ? text.slice(0, rawExcerptChars) + '…' : text;
+  // NUL is never stored, not even in the copy of a rejected row; U+2400 shows where it was.
+  return shortText(text.replace(/\0/g, '\u2400'), rawExcerptChars);
 }
 
 function showValue(value: string | undefined): string {
   if (value === undefined || value.trim() === '') return '';
-  const shown = value.length > 40 ? value.slice(0, 40) + '…' : value;
+  const shown = shortText(value);
   return ` (got "${shown}")`;
 }
 
@@ -314,19 +379,44 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
     const text = decodeText(this.source, this.options.maxBytes ?? defaultMaxBytes, counters);
 
     // Read ahead to the first non-blank line so the delimiter is known before csv-parse starts.
+    // Each chunk is scanned once, so a first line of any length costs time linear in it.
     let head = '';
-    while (!/\S[^\n]*\n/.test(head) && head.length <= headerSniffChars) {
+    let headerLine: string | null = null;
+    let lineStart = 0;
+    for (;;) {
+      for (let nl = head.indexOf('\n', lineStart); nl !== -1; nl = head.indexOf('\n', lineStart)) {
+        const candidate = head.slice(lineStart, nl);
+        lineStart = nl + 1;
+        if (candidate.trim() !== '') {
+          headerLine = candidate;
+          break;
+        }
+      }
+      if (headerLine !== null || head.length - lineStart > headerSniffChars) break;
       const next = await text.next();
       if (next.done) break;
       head += next.value;
     }
+    if (headerLine === null && head.length - lineStart > headerSniffChars)
+      throw new ImportFileError(
+        'malformed_csv',
+        `The first line is longer than ${headerSniffChars.toLocaleString('en')} characters, so it cannot be ` +
+          `a header of Ballast columns. Is this a CSV file? It begins "${shortText(head.slice(lineStart).trim())}".`,
+        1,
+      );
+    if (headerLine === null) headerLine = head.slice(lineStart);
     if (head.trim() === '')
       throw new ImportFileError('empty_file', 'The file is empty: it has no header and no rows.');
-    const headerLine = head.split('\n').find((l) => l.trim() !== '') ?? '';
     const delimiter = sniffDelimiter(headerLine);
     this.delimiter = delimiter;
 
+    // The end line of the last record csv-parse finished, even if this loop has not taken it yet.
+    let parsedEndLine = 0;
     const parser = parse({
+      on_record: (record, context) => {
+        parsedEndLine = context.lines;
+        return record;
+      },
       delimiter,
       record_delimiter: '\n',
       info: true,
@@ -365,14 +455,12 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
       warnings: [],
     };
     let header: HeaderMapping[] | null = null;
-    let lastEndLine = 0;
     let textIndex = -1;
 
     try {
       for await (const { record, raw, info } of parser as AsyncIterable<CsvRecord>) {
         const endLine = info.lines;
         const line = endLine - (countNewlines(raw) - (raw.endsWith('\n') ? 1 : 0));
-        lastEndLine = endLine;
         if (record.every((cell) => cell.trim() === '')) {
           if (header) summary.blankLines++;
           continue;
@@ -393,8 +481,9 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
         const parsed = this.validate(record, raw, line, header, schema, rules);
         if ('error' in parsed) summary.rowsInvalid++;
         else summary.rowsValid++;
-        if (textIndex >= 0 && (record[textIndex]?.length ?? 0) > importLimits.textMax && 'row' in parsed)
-          summary.textsTruncated++;
+        const textCell = textIndex >= 0 ? (record[textIndex] ?? '') : '';
+        const kept = 'row' in parsed ? (parsed.row as { text?: string | null }).text : null;
+        if (kept && kept.length < textCell.length) summary.textsTruncated++;
         yield parsed;
       }
     } catch (error) {
@@ -403,22 +492,22 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
       if (code === 'CSV_QUOTE_NOT_CLOSED')
         throw new ImportFileError(
           'malformed_csv',
-          `A quoted field that starts on line ${lastEndLine + 1} is never closed, so the rest of the file cannot ` +
+          `A quoted field that starts on line ${parsedEndLine + 1} is never closed, so the rest of the file cannot ` +
             'be read. Check for a stray double quote (") on that line.',
-          lastEndLine + 1,
+          parsedEndLine + 1,
         );
       if (code === 'CSV_MAX_RECORD_SIZE')
         throw new ImportFileError(
           'malformed_csv',
-          `The record starting on line ${lastEndLine + 1} is longer than ${maxRecordChars} characters; ` +
+          `The record starting on line ${parsedEndLine + 1} is longer than ${maxRecordChars} characters; ` +
             'a stray double quote (") probably joined many lines into one field.',
-          lastEndLine + 1,
+          parsedEndLine + 1,
         );
       if (typeof code === 'string' && code.startsWith('CSV_'))
         throw new ImportFileError(
           'malformed_csv',
-          `The CSV could not be read after line ${lastEndLine}: ${(error as Error).message}`,
-          lastEndLine + 1,
+          `The CSV could not be read after line ${parsedEndLine}: ${shortText((error as Error).message, rawExcerptChars)}`,
+          parsedEndLine + 1,
         );
       throw error;
     } finally {
@@ -450,6 +539,9 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
       line,
       error: { line, ...(column ? { column } : {}), reason, raw: excerpt(raw) },
     });
+    // Spreadsheets pad rows with empty cells (`…,2026-05-01,,,`); only extra cells holding a value are wrong.
+    if (record.length > header.length && record.slice(header.length).every((cell) => cell.trim() === ''))
+      record = record.slice(0, header.length);
     if (record.length !== header.length) {
       return fail(
         `expected ${header.length} fields as in the header, found ${record.length}; ` +
@@ -465,6 +557,7 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
         problems.push({ column: undefined, message: `column ${h.position} has no header but holds a value` });
     });
 
+    problems.push(...nulProblems(cells));
     let draft: ReviewRowDraft | AggregateRowDraft | null =
       problems.length === 0 && this.kind === 'reviews' ? fastReviewCsvRow(cells, this.clock) : null;
     const result = draft ? null : schema.safeParse(cells);
@@ -478,13 +571,9 @@ export class ImportParse<K extends ImportKind> implements AsyncIterable<ParsedRe
     // Cross-row rules see every row whose identity is readable, so a broken first row still names its item.
     const category = cells.category?.trim().toLowerCase() ?? '';
     const sku = cells.sku?.trim() ?? '';
-    const titleCell = cells.title?.trim();
+    const titleCell = cells.title?.trim().normalize('NFC');
     const title = sku
-      ? rules.resolveTitle(
-          category,
-          sku,
-          titleCell && titleCell.length <= importLimits.titleMax ? titleCell : undefined,
-        )
+      ? rules.resolveTitle(category, sku, titleCell && titleFits(titleCell) ? titleCell : undefined)
       : undefined;
     if (draft) {
       if (title === undefined) problems.push({ column: 'title', message: titleMissingReason });

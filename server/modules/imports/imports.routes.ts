@@ -135,9 +135,9 @@ export const importRoutes = [
     access: importers,
     handler: async (req, res) => {
       const id = batchId(req.params.id);
-      const csv = await importErrorsCsv(req.actor!, id);
+      const { csv, fileName } = await importErrorsCsv(req.actor!, id);
       res.setHeader('content-type', 'text/csv; charset=utf-8');
-      res.setHeader('content-disposition', `attachment; filename="ballast-import-${id}-rejected-rows.csv"`);
+      res.setHeader('content-disposition', `attachment; filename="${fileName}"`);
       res.send(csv);
       return undefined;
     },

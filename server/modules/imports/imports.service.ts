@@ -7,7 +7,8 @@ import {
   CrossRowRules,
   createAggregateJsonRowSchema,
   createReviewJsonRowSchema,
-  importLimits,
+  nulProblems,
+  titleFits,
   titleMissingReason,
   type AggregateRow,
   type ImportKind,
@@ -221,8 +222,8 @@ export async function getImport(actor: Actor, id: number): Promise<ImportBatchRe
 }
 
 /** The rejected rows of an import as CSV (line, column, reason, raw), safe to open in a spreadsheet. */
-export async function importErrorsCsv(actor: Actor, id: number): Promise<string> {
-  await findVisible(actor, id);
+export async function importErrorsCsv(actor: Actor, id: number): Promise<{ csv: string; fileName: string }> {
+  const batch = await findVisible(actor, id);
   const rows = await ImportRowError.findAll({
     where: { batchId: id },
     order: [
@@ -230,7 +231,7 @@ export async function importErrorsCsv(actor: Actor, id: number): Promise<string>
       ['id', 'ASC'],
     ],
   });
-  return rejectedRowsCsv(
+  const csv = rejectedRowsCsv(
     rows.map((r) => ({
       line: r.line,
       ...(r.columnName ? { column: r.columnName } : {}),
@@ -238,6 +239,12 @@ export async function importErrorsCsv(actor: Actor, id: number): Promise<string>
       ...(r.raw !== null ? { raw: r.raw } : {}),
     })),
   );
+  // Only the first rejected rows are kept; the file's name says how many of how many it holds.
+  const capped = rows.length < batch.rowsRejected;
+  const fileName = capped
+    ? `ballast-import-${id}-rejected-rows-first-${rows.length}-of-${batch.rowsRejected}.csv`
+    : `ballast-import-${id}-rejected-rows.csv`;
+  return { csv, fileName };
 }
 
 // ------------------------------------------------------------------ uploads in the background
@@ -453,14 +460,11 @@ export function validateJsonRows<K extends ImportKind>(
     const cells = (input && typeof input === 'object' ? input : {}) as Record<string, unknown>;
     const category = typeof cells.category === 'string' ? cells.category.trim().toLowerCase() : '';
     const sku = typeof cells.sku === 'string' ? cells.sku.trim() : '';
-    const titleCell = typeof cells.title === 'string' ? cells.title.trim() : undefined;
+    const titleCell = typeof cells.title === 'string' ? cells.title.trim().normalize('NFC') : undefined;
     const title = sku
-      ? rules.resolveTitle(
-          category,
-          sku,
-          titleCell && titleCell.length <= importLimits.titleMax ? titleCell : undefined,
-        )
+      ? rules.resolveTitle(category, sku, titleCell && titleFits(titleCell) ? titleCell : undefined)
       : undefined;
+    problems.push(...nulProblems(cells));
     if (!result.success) {
       for (const issue of result.error.issues)
         problems.push({

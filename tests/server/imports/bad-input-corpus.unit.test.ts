@@ -5,13 +5,16 @@ import { describe, expect, it } from 'vitest';
 import { rootDir } from '../../../server/config/env';
 import { neutraliseCell } from '../../../server/modules/imports/csv-safe';
 import { collectImport, ImportFileError, parseImport } from '../../../server/modules/imports/import-parser';
-import type { ImportKind } from '../../../shared/schemas/import.schema';
+import { graphemeLength, type ImportKind } from '../../../shared/schemas/import.schema';
 
 type Case = {
   file: string;
   kind: ImportKind;
   about: string;
   fileError?: string;
+  /** The whole message a refused file gets. */
+  message?: string;
+  warnings?: string[];
   rowsRead?: number;
   goodRows?: number;
   rejected?: { line: number; column: string | null; reason: string }[];
@@ -50,6 +53,16 @@ function open(file: string): Readable {
 }
 
 describe('the bad-input corpus (tests/fixtures/bad-input)', () => {
+  it('holds the files people really have: line ends, UTF-16, padding, headers, lengths, NUL, wide input', () => {
+    // Issue 13 grew the corpus by these 29 files (each with its outcome in expected.json).
+    const added = manifest.cases.filter((c) =>
+      /^(line-ends|utf16le-|utf16be-|trailing-|header-|text-over|title-(300|501|family)|nul-in|multiline-|long-|wide-)/.test(
+        c.file,
+      ),
+    );
+    expect(added.length).toBeGreaterThanOrEqual(25);
+  });
+
   it('holds at least 30 broken or hostile files, each with an expected outcome', () => {
     expect(manifest.cases.length).toBeGreaterThanOrEqual(30);
   });
@@ -64,6 +77,9 @@ describe('the bad-input corpus (tests/fixtures/bad-input)', () => {
         expect(outcome).toBeInstanceOf(ImportFileError);
         expect((outcome as ImportFileError).code).toBe(c.fileError);
         expect((outcome as ImportFileError).message.length).toBeGreaterThan(20);
+        // A short excerpt at most, whatever the file holds (a 200 KB line once came back whole).
+        expect((outcome as ImportFileError).message.length).toBeLessThan(400);
+        if (c.message !== undefined) expect((outcome as ImportFileError).message).toBe(c.message);
         return;
       }
       const result = await collectImport(open(c.file), c.kind, { now });
@@ -73,6 +89,8 @@ describe('the bad-input corpus (tests/fixtures/bad-input)', () => {
       expect(
         result.errors.map((e) => ({ line: e.line, column: e.column ?? null, reason: e.reason })),
       ).toEqual(c.rejected);
+      if (c.warnings !== undefined) expect(result.summary.warnings).toEqual(c.warnings);
+      for (const e of result.errors) expect(graphemeLength(e.raw ?? '')).toBeLessThanOrEqual(201);
     });
   }
 

@@ -6,6 +6,7 @@ import {
   parseImport,
   sniffDelimiter,
 } from '../../../server/modules/imports/import-parser';
+import { cutGraphemes, graphemeLength, nulReason } from '../../../shared/schemas/import.schema';
 import type { ImportKind } from '../../../shared/schemas/import.schema';
 
 const now = new Date('2026-12-01T12:00:00Z');
@@ -259,7 +260,6 @@ describe('review CSV: whole-file rules', () => {
     ['an xlsx (zip)', Buffer.from([0x50, 0x4b, 0x03, 0x04, 0x14, 0, 0, 0, 8, 0]), /Excel workbook/],
     ['a PDF', Buffer.from('%PDF-1.7\n%\u00e2\u00e3\n1 0 obj'), /PDF/],
     ['a gzip', Buffer.from([0x1f, 0x8b, 8, 0, 0, 0, 0, 0, 0, 3]), /gzip/],
-    ['a NUL byte', Buffer.from(`${header}\n${good('r1')}\u0000\n`), /binary data/],
   ])('refuses a binary file (%s)', async (_label, content, message) => {
     const error = await fileError(content);
     expect(error.code).toBe('binary_file');
@@ -455,5 +455,172 @@ describe('streaming', () => {
     for await (const _ of run) void _;
     expect(run.summary.rowsValid).toBe(1);
     expect(() => run[Symbol.asyncIterator]()).toThrow();
+  });
+});
+
+describe('files people really have (issue 13)', () => {
+  it('reads LF, CRLF and a bare CR in one file, naming a bad row by its own line', async () => {
+    const text = `${header}\r\n${good('r1')}\r\n${good('r2')}\r${good('r3')}\n${good('r4', { stars: '6' })}\r\n${good('r5')}\n`;
+    // Chunks of 1 byte put every CR at a chunk's end, where CRLF and a bare CR look alike.
+    for (const chunk of [1, 7]) {
+      const result = await collectImport(source(text, chunk), 'reviews', { now });
+      expect(result.rows.map((r) => [r.line, r.row.reviewId])).toEqual([
+        [2, 'r1'],
+        [3, 'r2'],
+        [4, 'r3'],
+        [6, 'r5'],
+      ]);
+      expect(result.errors.map((e) => e.line)).toEqual([5]);
+    }
+  });
+
+  it('reads a CR-only file, also with a line break inside a quoted text', async () => {
+    const text = [header, good('r1').replace(',fine', ',"two\rlines"'), good('r2')].join('\r');
+    const result = await collectImport(source(text), 'reviews', { now });
+    expect(result.rows.map((r) => [r.line, r.row.reviewId, r.row.text])).toEqual([
+      [2, 'r1', 'two\nlines'],
+      [4, 'r2', 'fine'],
+    ]);
+  });
+
+  it.each([
+    [
+      'UTF-16 LE with BOM',
+      Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from(`${header}\n${good('r1')}\n`, 'utf16le')]),
+    ],
+    [
+      'UTF-16 BE with BOM',
+      Buffer.concat([
+        Buffer.from([0xfe, 0xff]),
+        Buffer.from(`${header}\n${good('r1')}\n`, 'utf16le').swap16(),
+      ]),
+    ],
+    ['UTF-16 LE without BOM', Buffer.from(`${header}\n${good('r1')}\n`, 'utf16le')],
+    ['UTF-16 BE without BOM', Buffer.from(`${header}\n${good('r1')}\n`, 'utf16le').swap16()],
+  ])('decodes %s', async (_label, bytes) => {
+    const result = await collectImport(source(bytes), 'reviews', { now });
+    expect(result.errors).toEqual([]);
+    expect(result.rows.map((r) => r.row.reviewId)).toEqual(['r1']);
+  });
+
+  it('refuses UTF-16 holding half an emoji, saying it is not valid UTF-16', async () => {
+    const bytes = Buffer.concat([
+      Buffer.from([0xff, 0xfe]),
+      Buffer.from(`${header}\n${good('r1')}\n`, 'utf16le'),
+      Buffer.from([0x3d, 0xd8]),
+      Buffer.from('x\n', 'utf16le'),
+    ]);
+    const error = await fileError(bytes);
+    expect(error.code).toBe('not_utf8');
+    expect(error.message).toMatch(/not valid UTF-16 \(little-endian\) on or after line 3/);
+  });
+
+  it('takes rows padded with empty fields, but not an extra field that holds a value', async () => {
+    const result = await reviews([`${good('r1')},,,`, `${good('r2')},`, `${good('r3')},,x`]);
+    expect(result.rows.map((r) => r.row.reviewId)).toEqual(['r1', 'r2']);
+    expect(result.errors.map((e) => [e.line, e.reason])).toEqual([
+      [4, 'expected 12 fields as in the header, found 14; check for an unquoted comma inside a value'],
+    ]);
+  });
+
+  it('matches header names whatever their case, spaces or invisible characters, and names what it ignored', async () => {
+    const head = header
+      .replace('review_id', ' Review_ID ')
+      .replace('sku', 'SKU\u200b')
+      .replace('title', '\u2060title');
+    const result = await reviews([good('r1')], head);
+    expect(result.rows).toHaveLength(1);
+    expect(result.summary.warnings).toEqual([
+      'Column 2 is "sku" with the invisible character U+200B; it was read as sku.',
+      'Column 3 is "title" with the invisible character U+2060; it was read as title.',
+    ]);
+  });
+
+  it('names an invisible character in an unknown column', async () => {
+    const error = await fileError(`${header.replace('stars', 'star\u200bz')}\n${good('r1')}\n`);
+    expect(error.code).toBe('unknown_column');
+    expect(error.message).toMatch(
+      /^Unknown column "starz" \(column 5, which also holds the invisible character U\+200B\)/,
+    );
+  });
+
+  it('cuts a text over 20,000 characters (as the README says) instead of refusing the file', async () => {
+    for (const [unit, count] of [
+      ['a', 1_050_000],
+      ['\u{1F375}', 20_005],
+      ['e\u0301', 20_001],
+    ] as const) {
+      const result = await reviews([good('r1').replace(',fine', `,${unit.repeat(count)}`)]);
+      const text = result.rows[0]!.row.text!;
+      // Each unit is one grapheme cluster (UAX #29: an emoji; a letter with its combining accent).
+      expect(text).toBe(unit.repeat(20_000));
+      expect(result.summary.textsTruncated).toBe(1);
+    }
+  });
+
+  it('counts a title in characters as a person sees them: 300 emoji are 300 characters', async () => {
+    const title = '\u{1F375}'.repeat(300);
+    const result = await reviews([good('r1').replace('Keelwood Kettle', title)]);
+    expect(result.errors).toEqual([]);
+    expect(result.rows[0]!.row.title).toBe(title);
+  });
+
+  it('rejects a NUL in a cell with the reason the ingest API gives, and quotes the row without it', async () => {
+    const result = await reviews([good('r1').replace(',fine', ',fi\u0000ne'), good('r2')]);
+    expect(result.rows.map((r) => r.row.reviewId)).toEqual(['r2']);
+    expect(result.errors).toEqual([
+      {
+        line: 2,
+        column: 'text',
+        reason: nulReason('text'),
+        raw: good('r1').replace(',fine', ',fi\u2400ne'),
+      },
+    ]);
+  });
+
+  it('names a bad row that spans lines by its first line', async () => {
+    const result = await reviews([
+      good('r1').replace(',fine', ',"one\ntwo\nthree"'),
+      good('r2', { stars: '9' }).replace(',fine', ',"four\r\nfive"'),
+      good('r3'),
+    ]);
+    expect(result.errors.map((e) => e.line)).toEqual([5]);
+    expect(result.rows.map((r) => r.line)).toEqual([2, 7]);
+  });
+
+  it.each([
+    ['a 200 KB line with no line break', 'x'.repeat(200_000)],
+    ['a header of 100,000 columns', Array.from({ length: 100_000 }, (_, i) => `c${i}`).join(',') + '\n'],
+  ])('refuses %s, quoting only a short excerpt', async (_label, text) => {
+    const error = await fileError(Buffer.from(text), 'reviews');
+    expect(error.code).toBe('malformed_csv');
+    expect(error.line).toBe(1);
+    expect(error.message.length).toBeLessThan(300);
+  });
+
+  it('quotes at most 200 characters of a rejected row', async () => {
+    const result = await reviews([good('r1'), 'y'.repeat(200_000), good('r2')]);
+    expect(result.errors).toHaveLength(1);
+    expect(result.errors[0]!.line).toBe(3);
+    expect(result.errors[0]!.raw).toBe('y'.repeat(200) + '…');
+  });
+});
+
+describe('grapheme counting', () => {
+  it('agrees with Intl.Segmenter over the whole text, for texts read in short windows', () => {
+    // Reference: Intl.Segmenter (ECMA-402) segmenting the whole string at once.
+    const segmenter = new Intl.Segmenter(undefined, { granularity: 'grapheme' });
+    for (const unit of [
+      'ab\u{1F468}\u200d\u{1F469}\u200d\u{1F467}',
+      'e\u0301',
+      '\r\n',
+      '\u{1F1F3}\u{1F1FF}x',
+      'z\u0334\u0321\u031b\u034e\u0317',
+    ]) {
+      const text = unit.repeat(997);
+      const all = [...segmenter.segment(text)].map((s) => s.segment);
+      expect(graphemeLength(text)).toBe(all.length);
+      expect(cutGraphemes(text, 700)).toBe(all.slice(0, 700).join(''));
+    }
   });
 });

@@ -3,6 +3,7 @@ import type { ImportBatchRecord } from '../../../../shared/schemas/imports-api.s
 import { importModeLabels } from '../../../../shared/schemas/imports-api.schema';
 import { EmptyState } from '../../../components/ui/status';
 import { errorsCsvUrl } from '../api/get-import';
+import { rejectedDownload } from '../outcome';
 import { StatusBadge } from './import-status';
 
 const sourceWords: Record<ImportBatchRecord['source'], string> = {
@@ -19,8 +20,9 @@ export function HistoryTable({ batches }: { batches: ImportBatchRecord[] }) {
         Files you import and data sent with API tokens appear here.
       </EmptyState>
     );
+  // relative: the sr-only texts inside are positioned; without it they widen the page at 390 px.
   return (
-    <div className="overflow-x-auto rounded-lg border border-ink-100 bg-white">
+    <div className="relative overflow-x-auto rounded-lg border border-ink-100 bg-white">
       <table className="w-full text-sm">
         <caption className="sr-only">Import history, newest first</caption>
         <thead className="bg-ink-50 text-left text-ink-700">
@@ -62,7 +64,13 @@ export function HistoryTable({ batches }: { batches: ImportBatchRecord[] }) {
                 {b.rowsRejected > 0 ? (
                   <a className="font-semibold text-coral-500 underline" href={errorsCsvUrl(b.id)} download>
                     {b.rowsRejected.toLocaleString('en')}
-                    <span className="sr-only"> rejected rows, download as CSV</span>
+                    <span className="sr-only">
+                      {' '}
+                      rejected rows, download as CSV
+                      {rejectedDownload(b.rowsRejected).kept < b.rowsRejected
+                        ? ` (the first ${rejectedDownload(b.rowsRejected).kept.toLocaleString('en-GB')})`
+                        : ''}
+                    </span>
                   </a>
                 ) : (
                   0
@@ -71,7 +79,7 @@ export function HistoryTable({ batches }: { batches: ImportBatchRecord[] }) {
               <td className="px-3 py-2 text-right tabular-nums">{b.rowsInserted.toLocaleString('en')}</td>
               <td className="px-3 py-2 text-right tabular-nums">{b.rowsUpdated.toLocaleString('en')}</td>
               <td className="px-3 py-2" title={b.errorMessage ?? undefined}>
-                <StatusBadge status={b.status} />
+                <StatusBadge batch={b} />
               </td>
             </tr>
           ))}

@@ -1,5 +1,6 @@
 import type { ImportBatchRecord } from '../../../../shared/schemas/imports-api.schema';
 import { errorsCsvUrl, isRunning } from '../api/get-import';
+import { importedNothing, outcomeSentence, rejectedDownload, rowAccount } from '../outcome';
 import { formatSize } from './file-drop';
 
 const statusWords: Record<ImportBatchRecord['status'], string> = {
@@ -18,21 +19,41 @@ export const statusTone: Record<ImportBatchRecord['status'], string> = {
   rejected: 'bg-coral-100 text-coral-500',
 };
 
-export function StatusBadge({ status }: { status: ImportBatchRecord['status'] }) {
+/** The badge of an import; one that finished without storing a row says so rather than "Imported". */
+export function StatusBadge({ batch }: { batch: ImportBatchRecord }) {
+  const nothing = importedNothing(batch);
+  const tone = nothing ? statusTone.rejected : statusTone[batch.status];
   return (
-    <span className={`inline-block rounded-full px-2 py-0.5 text-xs font-semibold ${statusTone[status]}`}>
-      {statusWords[status]}
+    <span
+      className={`inline-block rounded-full px-2 py-0.5 text-xs font-semibold whitespace-nowrap ${tone}`}
+      data-testid="import-status-badge"
+    >
+      {nothing ? 'Nothing imported' : statusWords[batch.status]}
     </span>
   );
 }
 
-function Figure({ label, value, tone = 'text-ink-900' }: { label: string; value: number; tone?: string }) {
+function Figure({
+  label,
+  value,
+  tone = 'text-ink-900',
+  note,
+}: {
+  label: string;
+  value: number;
+  tone?: string;
+  note?: string;
+}) {
   return (
-    <div className="rounded-md bg-paper px-3 py-2">
+    <div className="rounded-md bg-paper px-3 py-2" title={note}>
       <dt className="text-xs tracking-wide text-ink-500 uppercase">{label}</dt>
-      <dd className={`text-2xl font-bold tabular-nums ${tone}`} data-testid={`result-${label.toLowerCase()}`}>
+      <dd
+        className={`text-2xl font-bold tabular-nums ${tone}`}
+        data-testid={`result-${label.toLowerCase().replace(/ /g, '-')}`}
+      >
         {value.toLocaleString('en')}
       </dd>
+      {note ? <dd className="mt-0.5 text-xs text-ink-500">{note}</dd> : null}
     </div>
   );
 }
@@ -40,6 +61,8 @@ function Figure({ label, value, tone = 'text-ink-900' }: { label: string; value:
 /** Progress while an import runs, then its result; it keeps running on the server if the page is closed. */
 export function ImportStatus({ batch }: { batch: ImportBatchRecord }) {
   const running = isRunning(batch);
+  const { heldBack, unchanged } = rowAccount(batch);
+  const download = rejectedDownload(batch.rowsRejected);
   const share = batch.fileBytes ? Math.min(1, batch.bytesDone / batch.fileBytes) : 0;
   return (
     <section
@@ -51,7 +74,7 @@ export function ImportStatus({ batch }: { batch: ImportBatchRecord }) {
         <h2 id="import-status-heading" className="text-lg font-bold text-ink-900">
           {batch.fileName ?? `Import ${batch.id}`}
         </h2>
-        <StatusBadge status={batch.status} />
+        <StatusBadge batch={batch} />
       </div>
       {running ? (
         <div className="mt-4">
@@ -75,21 +98,37 @@ export function ImportStatus({ batch }: { batch: ImportBatchRecord }) {
         </div>
       ) : (
         <p role="status" className="mt-2 text-sm text-ink-700" data-testid="import-outcome">
-          {batch.status === 'succeeded'
-            ? `Done: ${batch.rowsRead} rows read, ${batch.rowsAccepted} accepted, ${batch.rowsRejected} rejected.`
-            : (batch.errorMessage ?? 'The import did not finish.')}
+          {outcomeSentence(batch)}
         </p>
       )}
-      <dl className="mt-4 grid grid-cols-2 gap-2 sm:grid-cols-5">
-        <Figure label="Read" value={batch.rowsRead} />
-        <Figure label="Accepted" value={batch.rowsAccepted} tone="text-kelp-500" />
+      {/* Read = accepted + rejected + not written; accepted = new + updated + unchanged. */}
+      <dl className="mt-4 grid grid-cols-2 gap-2 sm:grid-cols-3 lg:grid-cols-7">
+        <Figure label="Read" value={batch.rowsRead} note="rows, blank lines not counted" />
+        <Figure
+          label="Accepted"
+          value={batch.rowsAccepted}
+          tone={batch.rowsAccepted ? 'text-kelp-500' : undefined}
+        />
         <Figure
           label="Rejected"
           value={batch.rowsRejected}
           tone={batch.rowsRejected ? 'text-coral-500' : undefined}
+          note="rows with mistakes"
+        />
+        <Figure
+          label="Not written"
+          value={heldBack}
+          note={
+            heldBack === 0
+              ? undefined
+              : batch.mode === 'all_or_nothing'
+                ? 'good rows, held back: all or nothing'
+                : 'read before the stop, not written'
+          }
         />
         <Figure label="New" value={batch.rowsInserted} />
         <Figure label="Updated" value={batch.rowsUpdated} />
+        <Figure label="Unchanged" value={unchanged} note="already stored as sent" />
       </dl>
       {!running && batch.rowsRejected > 0 ? (
         <a
@@ -97,7 +136,7 @@ export function ImportStatus({ batch }: { batch: ImportBatchRecord }) {
           download
           className="mt-4 inline-flex items-center gap-2 rounded-md bg-white px-3.5 py-2 text-sm font-semibold text-ink-900 ring-1 ring-ink-200 hover:bg-ink-50"
         >
-          Download the {batch.rowsRejected} rejected rows (CSV)
+          {download.label}
         </a>
       ) : null}
     </section>

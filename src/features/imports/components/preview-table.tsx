@@ -1,3 +1,4 @@
+import { countOf } from '../../../../shared/plural';
 import type { ImportPreview } from '../../../../shared/schemas/imports-api.schema';
 
 const delimiterWords = { comma: 'comma', semicolon: 'semicolon', tab: 'tab' } as const;
@@ -20,7 +21,8 @@ export function PreviewTable({ preview }: { preview: ImportPreview }) {
     <div>
       <p className="mb-2 text-sm text-ink-700" data-testid="preview-summary">
         Read as {preview.delimiter ? delimiterWords[preview.delimiter] : 'CSV'}-separated, {columns.length}{' '}
-        columns recognised. First {preview.rows.length} rows{preview.more ? ' of more' : ''}:{' '}
+        columns recognised. {preview.more ? 'First' : 'All'} {countOf(preview.rows.length, 'row')}
+        {preview.more ? ' (the file has more)' : ''}:{' '}
         <span className="font-semibold text-kelp-500">{preview.rows.length - bad} readable</span>
         {bad > 0 ? (
           <>
@@ -34,7 +36,7 @@ export function PreviewTable({ preview }: { preview: ImportPreview }) {
           {w}
         </p>
       ))}
-      <div className="max-h-[28rem] overflow-auto rounded-lg border border-ink-100 bg-white">
+      <div className="relative max-h-[28rem] overflow-auto rounded-lg border border-ink-100 bg-white">
         <table className="w-full text-left text-xs">
           <caption className="sr-only">Preview of the first rows of the file</caption>
           <thead className="sticky top-0 bg-ink-50 text-ink-700">
@@ -59,6 +61,15 @@ export function PreviewTable({ preview }: { preview: ImportPreview }) {
                       {row.error.column ? `${row.error.column}: ` : ''}
                     </span>
                     {row.error.reason}
+                    {row.error.raw ? (
+                      // What the row held, as plain text (React escapes it), so the mistake can be found.
+                      <code
+                        className="mt-1 block max-w-full overflow-x-auto font-mono text-[11px] whitespace-pre text-ink-700"
+                        data-testid="preview-raw"
+                      >
+                        {row.error.raw}
+                      </code>
+                    ) : null}
                   </td>
                 ) : (
                   columns.map((c) => (
