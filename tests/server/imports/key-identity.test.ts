@@ -8,6 +8,7 @@ import type { CreatedToken } from '../../../shared/schemas/tokens.schema';
 import { createApp } from '../../../server/app';
 import { loadConfig } from '../../../server/config/env';
 import { createMigrator } from '../../../server/db/migrator';
+import { chunkRows } from '../../../server/modules/imports/imports.writer';
 import { setupTestApp, type Agent, type TestApp } from '../../helpers/test-app';
 
 let t: TestApp;
@@ -258,6 +259,40 @@ describe('imports at the same time', () => {
       );
       expect(Number(n!.n)).toBe(live.status === 200 ? 80 : 40);
     }
+  });
+
+  it('an all-or-nothing upload finishes when another import commits one of its new items halfway', async () => {
+    await ingest(t.app, 'reviews', { rows: [review('base-0', 'CH-BASE')] }).expect(200);
+    const categoryId = await gardenTools();
+    // The other import: it has created CH-NEW but not yet committed when the upload reaches that item.
+    const other = await t.db.sequelize.transaction();
+    await t.db.sequelize.query(
+      "INSERT INTO items (category_id, sku, title, active, created_at, updated_at) VALUES (?, 'CH-NEW', 'Other', 1, NOW(), NOW())",
+      { replacements: [categoryId], transaction: other },
+    );
+    const csv =
+      'review_id,sku,title,category,stars,reviewed_at\n' +
+      Array.from({ length: chunkRows }, (_, i) => `ch-${i},CH-BASE,Tool,garden-tools,4,2026-05-01`).join(
+        '\n',
+      ) +
+      '\nch-new,CH-NEW,Tool new,garden-tools,5,2026-05-02\n';
+    const up = await uploadCsv(csv, 'all_or_nothing').expect(202);
+    // Wait for the upload's second chunk to queue behind the uncommitted item, then let it through.
+    for (let waiting = 0; waiting === 0;) {
+      const [row] = await select<{ n: number }>(
+        "SELECT COUNT(*) AS n FROM information_schema.INNODB_TRX WHERE trx_state = 'LOCK WAIT'",
+      );
+      waiting = Number(row!.n);
+      if (waiting === 0) await sleep(20);
+    }
+    await other.commit();
+    const batch = await finished((up.body as ImportBatchRecord).id);
+    expect(batch.status, batch.errorMessage ?? '').toBe('succeeded');
+    expect(batch.rowsInserted).toBe(chunkRows + 1);
+    const [n] = await select<{ n: number }>(
+      "SELECT COUNT(*) AS n FROM reviews r JOIN items i ON i.id = r.item_id WHERE i.sku = 'CH-NEW'",
+    );
+    expect(Number(n!.n)).toBe(1);
   });
 
   it('two all-or-nothing ingests on two app servers never answer 500 and lose nothing', async () => {
