@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { keyOf } from '../keys';
 
 /*
  * Ballast's own import formats: review-level and aggregate-level rows, as CSV (snake_case headers, every
@@ -220,17 +221,17 @@ const decimalPattern = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)$/;
 const requiredText = (column: string, max: number) =>
   z
     .string({ error: `${column} is missing` })
-    .trim()
+    .overwrite(keyOf)
     .min(1, { error: `${column} is missing` })
     .max(max, { error: `${column} is longer than ${max} characters` });
 
+/** Slugs are keys too: written exactly, never case-folded (`Garden-Tools` is not `garden-tools`). */
 const categoryField = z
   .string({ error: 'category is missing' })
-  .trim()
+  .overwrite(keyOf)
   .min(1, { error: 'category is missing' })
-  .toLowerCase()
   .max(importLimits.categoryMax, { error: `category is longer than ${importLimits.categoryMax} characters` })
-  .regex(slugPattern, { error: 'category must be a slug: letters, digits and single hyphens' });
+  .regex(slugPattern, { error: 'category must be a slug: lowercase letters, digits and single hyphens' });
 
 // Titles are stored in NFC, so an accent typed as a separate mark counts, and is kept, as one letter.
 const optionalTitle = z
@@ -254,7 +255,7 @@ const optionalTitle = z
 const optionalId = (column: string) =>
   z
     .string()
-    .trim()
+    .overwrite(keyOf)
     .max(importLimits.idMax, { error: `${column} is longer than ${importLimits.idMax} characters` })
     .nullish()
     .transform((value) => (value ? value : null));
@@ -408,9 +409,9 @@ function fastWhole(value: string | undefined, min: number, max: number, fallback
   return n >= min && n <= max ? n : null;
 }
 
-function fastText(value: string | undefined, max: number): string | null {
+function fastKey(value: string | undefined, max: number): string | null {
   if (value === undefined) return null;
-  const text = value.trim();
+  const text = keyOf(value);
   return text.length >= 1 && text.length <= max ? text : null;
 }
 
@@ -420,11 +421,10 @@ function fastText(value: string | undefined, max: number): string | null {
  * tests hold the two to the same answers.
  */
 export function fastReviewCsvRow(cells: Record<string, string>, clock: Clock): ReviewRowDraft | null {
-  const reviewId = fastText(cells.review_id, importLimits.idMax);
-  const sku = fastText(cells.sku, importLimits.skuMax);
-  const categoryText = fastText(cells.category, importLimits.categoryMax);
-  if (reviewId === null || sku === null || categoryText === null) return null;
-  const category = categoryText.toLowerCase();
+  const reviewId = fastKey(cells.review_id, importLimits.idMax);
+  const sku = fastKey(cells.sku, importLimits.skuMax);
+  const category = fastKey(cells.category, importLimits.categoryMax);
+  if (reviewId === null || sku === null || category === null) return null;
   if (!slugPattern.test(category)) return null;
   let title: string | undefined;
   if (cells.title !== undefined) {
@@ -443,7 +443,7 @@ export function fastReviewCsvRow(cells: Record<string, string>, clock: Clock): R
   if (helpfulYes === null || helpfulNo === null) return null;
   let reviewerId: string | null = null;
   if (cells.reviewer_id !== undefined) {
-    const r = cells.reviewer_id.trim();
+    const r = keyOf(cells.reviewer_id);
     if (r.length > importLimits.idMax) return null;
     reviewerId = r === '' ? null : r;
   }
@@ -736,7 +736,7 @@ export class CrossRowRules {
 
   /** Remembers a row's title (even if the row is otherwise invalid, it names the item) and returns the title to use. */
   resolveTitle(category: string, sku: string, title: string | undefined): string | undefined {
-    const item = `${category}\u0000${sku}`;
+    const item = `${keyOf(category)}\u0000${keyOf(sku)}`;
     if (title !== undefined) {
       if (!this.titleByItem.has(item)) this.titleByItem.set(item, title);
       return title;

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { keyOf } from '../keys';
 import { priorMeanStrategies, priorWeightStrategies } from '../scoring/settings';
 
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
@@ -43,7 +44,7 @@ export const scoreItemInputSchema = z
   .object({
     sku: z
       .string({ error: 'is required' })
-      .trim()
+      .overwrite(keyOf)
       .min(1, 'is required')
       .max(120, 'must be at most 120 characters'),
     title: z.string().max(300, 'must be at most 300 characters').nullish(),
@@ -134,7 +135,7 @@ export const scoringSettingsSchema = z
   });
 
 export const previousRankingEntrySchema = z.object({
-  sku: z.string().min(1, 'is required'),
+  sku: z.string().overwrite(keyOf).min(1, 'is required'),
   naiveRank: count.min(1, 'must be 1 or more'),
   smoothedRank: count.min(1, 'must be 1 or more'),
 });

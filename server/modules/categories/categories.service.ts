@@ -1,4 +1,5 @@
 import type { CategorySummary } from '../../../shared/auth';
+import { keyOf } from '../../../shared/keys';
 import { Category, CategoryOwner, User } from '../../db/models';
 import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
@@ -7,7 +8,7 @@ import { recordAudit } from '../audit/audit.service';
 export type CategoryRef = { id: number; slug: string; name: string };
 
 export async function findCategoryBySlug(slug: string): Promise<CategoryRef | null> {
-  const row = await Category.findOne({ where: { slug }, attributes: ['id', 'slug', 'name'] });
+  const row = await Category.findOne({ where: { slug: keyOf(slug) }, attributes: ['id', 'slug', 'name'] });
   return row ? { id: row.id, slug: row.slug, name: row.name } : null;
 }
 
@@ -35,7 +36,7 @@ export async function listCategories(actor: Actor): Promise<CategorySummary[]> {
 
 export async function getCategory(slug: string): Promise<CategorySummary> {
   const row = await Category.findOne({
-    where: { slug },
+    where: { slug: keyOf(slug) },
     include: [
       { model: User, as: 'owners', attributes: ['id', 'name', 'email'], through: { attributes: [] } },
     ],
@@ -50,7 +51,7 @@ export async function setCategoryOwners(
   actor: Actor,
   ip?: string,
 ): Promise<CategorySummary> {
-  const category = await Category.findOne({ where: { slug } });
+  const category = await Category.findOne({ where: { slug: keyOf(slug) } });
   if (!category) throw AppError.notFound('The category');
   const users = await User.findAll({ where: { id: userIds }, attributes: ['id', 'role'] });
   if (users.length !== new Set(userIds).size)

@@ -1,4 +1,4 @@
-import { createReadStream, mkdirSync } from 'node:fs';
+import { createReadStream, mkdirSync, type ReadStream } from 'node:fs';
 import { rm, stat } from 'node:fs/promises';
 import path from 'node:path';
 import type { Readable } from 'node:stream';
@@ -23,6 +23,7 @@ import {
   type ImportPreview,
   type IngestResult,
 } from '../../../shared/schemas/imports-api.schema';
+import { keyOf } from '../../../shared/keys';
 import { loadConfig } from '../../config/env';
 import { ApiToken, CategoryOwner, ImportBatch, ImportRowError, User } from '../../db/models';
 import type { Actor } from '../../lib/actor';
@@ -32,14 +33,42 @@ import { rejectedRowsCsv } from './csv-safe';
 import { claimImport, importWorkerId, keepLeases, newLease, releaseImport } from './import-leases';
 import { ImportFileError, parseImport, type Delimiter, type ParsedRecord } from './import-parser';
 import {
+  conflictPause,
   fromArray,
+  ImportConflictError,
   loadCategoryScope,
   checkCategory,
+  writeAttempts,
   writeRecords,
   zeroCounters,
   type Counters,
+  type WriteOptions,
   type WriteOutcome,
 } from './imports.writer';
+
+/**
+ * An all-or-nothing import is one transaction, so when it collides with another import (a deadlock) the
+ * whole of it is tried again, from a fresh read of its rows, a few times. "Valid rows" imports retry each
+ * chunk inside the writer instead.
+ */
+async function writeWithRetries(
+  records: () => AsyncIterable<ParsedRecord<ImportKind>>,
+  options: WriteOptions,
+): Promise<WriteOutcome> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await writeRecords(records(), options);
+    } catch (error) {
+      if (!(error instanceof ImportConflictError) || options.mode !== 'all_or_nothing') throw error;
+      if (attempt >= writeAttempts) throw error;
+      await conflictPause(attempt);
+      await ImportBatch.update(
+        { status: 'running', errorMessage: null, finishedAt: null },
+        { where: { id: options.batchId } },
+      );
+    }
+  }
+}
 
 /** Where uploads wait while they are imported, and how large they may be; read from the configuration. */
 export function importSettings(): { uploadDir: string; maxBytes: number } {
@@ -312,20 +341,22 @@ async function runUploadBatch(batchId: number): Promise<void> {
       : undefined;
   if (resumed && batch.mode === 'all_or_nothing') await ImportRowError.destroy({ where: { batchId } });
   try {
-    const source = createReadStream(file);
-    const parse = parseImport(source, batch.kind, {
-      now: batch.createdAt,
-      maxBytes: importSettings().maxBytes,
-    });
-    await writeRecords(parse, {
+    let source: ReadStream | undefined;
+    const parse = () => {
+      source = createReadStream(file);
+      return parseImport(source, batch.kind, { now: batch.createdAt, maxBytes: importSettings().maxBytes });
+    };
+    await writeWithRetries(parse, {
       batchId,
       kind: batch.kind,
       mode: batch.mode,
       scope: await loadCategoryScope(await scopeOf(batch)),
       ...(resumeFrom ? { resumeFrom } : {}),
-      bytesRead: () => source.bytesRead,
+      bytesRead: () => source?.bytesRead ?? 0,
     });
   } catch (err) {
+    // The writer has already marked the batch failed with the reason the person can act on.
+    if (err instanceof ImportConflictError) return;
     logger.error({ err, batchId }, 'import stopped');
     await ImportBatch.update(
       {
@@ -458,8 +489,8 @@ export function validateJsonRows<K extends ImportKind>(
     const problems: { column: string | undefined; message: string }[] = [];
     const result = schema.safeParse(input);
     const cells = (input && typeof input === 'object' ? input : {}) as Record<string, unknown>;
-    const category = typeof cells.category === 'string' ? cells.category.trim().toLowerCase() : '';
-    const sku = typeof cells.sku === 'string' ? cells.sku.trim() : '';
+    const category = typeof cells.category === 'string' ? keyOf(cells.category) : '';
+    const sku = typeof cells.sku === 'string' ? keyOf(cells.sku) : '';
     const titleCell = typeof cells.title === 'string' ? cells.title.trim().normalize('NFC') : undefined;
     const title = sku
       ? rules.resolveTitle(category, sku, titleCell && titleFits(titleCell) ? titleCell : undefined)
@@ -537,13 +568,14 @@ async function runInline<K extends ImportKind>(
   allowed: number[] | null,
 ): Promise<WriteOutcome> {
   try {
-    return await writeRecords(fromArray(records), {
+    return await writeWithRetries(() => fromArray(records), {
       batchId,
       kind,
       mode,
       scope: await loadCategoryScope(allowed),
     });
   } catch (err) {
+    if (err instanceof ImportConflictError) throw err;
     await ImportBatch.update(
       {
         status: 'failed',

@@ -2,6 +2,7 @@ import type { Transaction } from 'sequelize';
 import type { AggregateRow, ImportKind, ReviewRow, RowError } from '../../../shared/schemas/import.schema';
 import { storedRowErrorsMax, type ImportMode } from '../../../shared/schemas/imports-api.schema';
 import { db } from '../../db/sequelize';
+import { AppError } from '../../lib/app-error';
 import { ImportFileError, type ParsedRecord, type RowOf } from './import-parser';
 
 /*
@@ -93,13 +94,58 @@ export function checkCategory(scope: CategoryScope, slug: string): number | stri
 
 type Placed<K extends ImportKind> = { line: number; row: RowOf<K>; categoryId: number };
 
+/**
+ * Writes that collided with another import at the same moment: a deadlock (1213), a lock wait that ran
+ * out (1205) or a unique key taken in between (1062). The transaction is tried again a few times.
+ */
+const conflictErrnos = new Set([1213, 1205, 1062]);
+export const writeAttempts = 4;
+
+export function isWriteConflict(error: unknown): boolean {
+  for (
+    let e = error as { errno?: number; parent?: unknown; original?: unknown; cause?: unknown } | null, i = 0;
+    e && i < 5;
+    i++
+  ) {
+    if (typeof e.errno === 'number' && conflictErrnos.has(e.errno)) return true;
+    e = (e.parent ?? e.original ?? e.cause ?? null) as typeof e;
+  }
+  return false;
+}
+
+/** Another import kept writing the same rows; the caller may send the import again. */
+export class ImportConflictError extends AppError {
+  constructor(message: string) {
+    super('conflict', message, 409);
+  }
+}
+
+export const conflictMessage =
+  'Another import was writing to the same items at the same time, and this one could not finish after ' +
+  'several tries; nothing was imported. Try again in a moment.';
+
+/** A short, random pause before another try, so two colliding imports do not collide again in step. */
+export const conflictPause = (attempt: number): Promise<void> =>
+  new Promise((resolve) => setTimeout(resolve, 20 * attempt + Math.floor(Math.random() * 50)));
+
 /** Item ids by category and sku, created on first sight (the title of that first row wins). */
 class ItemCache {
   private readonly ids = new Map<string, number>();
+  /** Ids learnt in the transaction still open; forgotten if it rolls back (the items may not exist). */
+  private fresh: string[] = [];
 
   private static key(categoryId: number, sku: string): string {
-    // The database compares skus without regard to case, so the cache does too.
-    return `${categoryId}\u0000${sku.toLowerCase()}`;
+    // Skus arrive in key form (shared/keys.ts) and the column compares exactly, so the cache does too.
+    return `${categoryId}\u0000${sku}`;
+  }
+
+  committed(): void {
+    this.fresh = [];
+  }
+
+  rolledBack(): void {
+    for (const key of this.fresh) this.ids.delete(key);
+    this.fresh = [];
   }
 
   async resolve(
@@ -112,7 +158,16 @@ class ItemCache {
       if (!this.ids.has(key) && !missing.has(key)) missing.set(key, r);
     }
     if (missing.size > 0) {
-      const list = [...missing.values()];
+      // In key order, so two imports creating the same items lock them in the same order.
+      const list = [...missing.values()].sort((a, b) =>
+        a.categoryId !== b.categoryId
+          ? a.categoryId - b.categoryId
+          : a.sku < b.sku
+            ? -1
+            : a.sku > b.sku
+              ? 1
+              : 0,
+      );
       const now = sqlTime(new Date());
       await exec(
         t,
@@ -125,12 +180,17 @@ class ItemCache {
       const where = [...byCategory.entries()]
         .map(([, skus]) => `(category_id = ? AND sku IN ${placeholders(skus.length)})`)
         .join(' OR ');
+      // A locking read sees items another import committed after this transaction's snapshot was taken.
       const found = await select<{ id: number; category_id: number; sku: string }>(
         t,
-        `SELECT id, category_id, sku FROM items WHERE ${where}`,
+        `SELECT id, category_id, sku FROM items WHERE ${where} LOCK IN SHARE MODE`,
         [...byCategory.entries()].flatMap(([categoryId, skus]) => [categoryId, ...skus.map((s) => s.sku)]),
       );
-      for (const f of found) this.ids.set(ItemCache.key(Number(f.category_id), f.sku), Number(f.id));
+      for (const f of found) {
+        const key = ItemCache.key(Number(f.category_id), f.sku);
+        if (!this.ids.has(key)) this.fresh.push(key);
+        this.ids.set(key, Number(f.id));
+      }
     }
     return rows.map((r) => {
       const id = this.ids.get(ItemCache.key(r.categoryId, r.sku));
@@ -404,14 +464,30 @@ export async function writeRecords<K extends ImportKind>(
       return;
     }
     const keep = rowErrors.slice(0, Math.max(0, storedRowErrorsMax - stored));
-    await sequelize.transaction(async (t) => {
-      const { inserted, updated } = await writeChunk(t, kind, batchId, items, rows);
-      next.rowsAccepted += rows.length;
-      next.rowsInserted += inserted;
-      next.rowsUpdated += updated;
-      await storeErrors(t, batchId, keep);
-      await saveCounters(t, batchId, next);
-    });
+    for (let attempt = 1; ; attempt++) {
+      try {
+        await sequelize.transaction(async (t) => {
+          const { inserted, updated } = await writeChunk(t, kind, batchId, items, rows);
+          await storeErrors(t, batchId, keep);
+          await saveCounters(t, batchId, {
+            ...next,
+            rowsAccepted: next.rowsAccepted + rows.length,
+            rowsInserted: next.rowsInserted + inserted,
+            rowsUpdated: next.rowsUpdated + updated,
+          });
+          next.rowsAccepted += rows.length;
+          next.rowsInserted += inserted;
+          next.rowsUpdated += updated;
+        });
+        items.committed();
+        break;
+      } catch (error) {
+        items.rolledBack();
+        if (!isWriteConflict(error)) throw error;
+        if (attempt >= writeAttempts) throw new ImportConflictError(conflictMessage);
+        await conflictPause(attempt);
+      }
+    }
     stored += keep.length;
     errors.push(...keep);
     Object.assign(counters, next);
@@ -464,7 +540,27 @@ export async function writeRecords<K extends ImportKind>(
   } catch (error) {
     // A write still running must end before the batch is judged (its transaction commits or rolls back).
     await (inflight as Promise<void> | null)?.catch(() => undefined);
-    if (outer) await outer.rollback();
+    if (outer) await outer.rollback().catch(() => undefined);
+    if (isWriteConflict(error) || error instanceof ImportConflictError) {
+      const message =
+        !outer && counters.rowsAccepted > 0
+          ? conflictMessage.replace(
+              'nothing was imported',
+              `the ${counters.rowsAccepted} valid rows counted as accepted were imported, the rest not (rows already imported are recognised, not duplicated)`,
+            )
+          : conflictMessage;
+      await saveCounters(
+        null,
+        batchId,
+        outer ? { ...zeroCounters(), bytesDone: counters.bytesDone } : counters,
+        {
+          status: 'failed',
+          errorMessage: message,
+          finished: true,
+        },
+      );
+      throw new ImportConflictError(message);
+    }
     if (!(error instanceof ImportFileError)) throw error;
     if (outer) {
       const reset = { ...zeroCounters(), bytesDone: counters.bytesDone };
@@ -508,7 +604,13 @@ export async function writeRecords<K extends ImportKind>(
       await outer.commit();
     } catch (error) {
       await outer.rollback().catch(() => undefined);
-      throw error;
+      if (!isWriteConflict(error)) throw error;
+      await saveCounters(null, batchId, zeroCounters(), {
+        status: 'failed',
+        errorMessage: conflictMessage,
+        finished: true,
+      });
+      throw new ImportConflictError(conflictMessage);
     }
     return { status: 'succeeded', counters, errorMessage: null, errors };
   }

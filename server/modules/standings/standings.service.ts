@@ -1,4 +1,5 @@
 import { QueryTypes } from 'sequelize';
+import { keyOf } from '../../../shared/keys';
 import type { ResolvedParameters } from '../../../shared/scoring';
 import { wilsonLowerBound } from '../../../shared/scoring';
 import type {
@@ -170,7 +171,8 @@ function standingsWhere(query: Omit<StandingsQuery, 'page' | 'pageSize' | 'sort'
   if (flags.has('cluster')) clauses.push('sr.negative_cluster = 1');
   if (flags.has('mover')) clauses.push(moverSql);
   if (query.q) {
-    clauses.push('(i.sku LIKE :q OR i.title LIKE :q)');
+    // Searching is not identity: it stays blind to case and accents although sku compares exactly.
+    clauses.push('(i.sku LIKE :q COLLATE utf8mb4_unicode_ci OR i.title LIKE :q)');
     replacements.q = `%${escapeLike(query.q)}%`;
   }
   if (query.driftMin !== undefined) {
@@ -477,7 +479,12 @@ function flagsOf(row: TimelineSqlRow, details: SnapshotRowDetails, params: Resol
 }
 
 /** Everything the item screen shows: rank timeline over all weeks and the chosen week's evidence. */
-export async function getItemDetail(category: CategoryRef, sku: string, week?: string): Promise<ItemDetail> {
+export async function getItemDetail(
+  category: CategoryRef,
+  rawSku: string,
+  week?: string,
+): Promise<ItemDetail> {
+  const sku = keyOf(rawSku);
   const [item] = await db().query<{ id: number; sku: string; title: string }>(
     'SELECT id, sku, title FROM items WHERE category_id = :categoryId AND sku = :sku',
     { replacements: { categoryId: category.id, sku }, type: QueryTypes.SELECT },

@@ -147,7 +147,7 @@ describe('review CSV: row rules', () => {
   });
 
   it('defaults blank helpful counts to 0 and reads optional fields', async () => {
-    const result = await reviews(['r1,KB-1,Kettle,Kettles,3,2026-01-01,,,,,,']);
+    const result = await reviews(['r1,KB-1,Kettle,kettles,3,2026-01-01,,,,,,']);
     expect(result.rows[0]?.row).toMatchObject({
       category: 'kettles',
       helpfulYes: 0,

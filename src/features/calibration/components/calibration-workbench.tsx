@@ -6,6 +6,7 @@ import {
   type ItemSummary,
   type ScoringSettings,
 } from '../../../../shared/scoring';
+import { keyOf } from '../../../../shared/keys';
 import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
 import { Button } from '../../../components/ui/button';
 import { EmptyState, ErrorPanel, Loading, errorMessage } from '../../../components/ui/status';
@@ -54,14 +55,14 @@ export function CalibrationWorkbench({
   const save = useSaveCalibrationNote(slug);
 
   const items = evidence.items as unknown as ItemSummary[];
-  const known = useMemo(() => new Map(items.map((i) => [i.sku.toLowerCase(), i.sku])), [items]);
+  const known = useMemo(() => new Map(items.map((i) => [keyOf(i.sku), i.sku])), [items]);
   const parsed = useMemo(() => parseObserved(text), [text]);
   const resolve = (sku: string): string | null => {
     if (dropped.has(sku)) return null;
     const wanted = fixes[sku] ?? sku;
-    return known.get(wanted.trim().toLowerCase()) ?? null;
+    return known.get(keyOf(wanted)) ?? null;
   };
-  const unknown = [...new Set(parsed.filter((sku) => !known.has(sku.toLowerCase())))];
+  const unknown = [...new Set(parsed.filter((sku) => !known.has(keyOf(sku))))];
   const mapped = parsed.map(resolve).filter((s): s is string => s !== null);
   const unresolved = unknown.filter((sku) => !dropped.has(sku) && resolve(sku) === null);
 
