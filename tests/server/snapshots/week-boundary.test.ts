@@ -2,7 +2,6 @@ import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { windowStart } from '../../../shared/iso-week';
 import { resolveSettings, summariseReviews, type ReviewInput } from '../../../shared/scoring';
 import type { ImportBatchRecord } from '../../../shared/schemas/imports-api.schema';
 import { rootDir } from '../../../server/config/env';
@@ -23,12 +22,10 @@ const W48 = '2026-W48';
 const cutoff = new Date('2026-11-30T00:00:00Z'); // Monday after ISO week 2026-W48 (Mon 23 – Sun 29 Nov)
 const settings = resolveSettings({});
 const S = 1000;
+const DAY = 86_400_000;
 const at = (ms: number): string => new Date(ms).toISOString();
-const recentStart = windowStart(cutoff, settings.recentWindowDays).getTime(); // 2026-09-01T00:00:00Z
-const baselineStart = windowStart(
-  cutoff,
-  settings.clusterWindowDays + settings.clusterBaselineDays,
-).getTime();
+const recentStart = cutoff.getTime() - settings.recentWindowDays * DAY; // 2026-09-01T00:00:00Z
+const baselineStart = cutoff.getTime() - (settings.clusterWindowDays + settings.clusterBaselineDays) * DAY;
 
 const boundaryReviews: ReviewInput[] = [
   { stars: 5, reviewedAt: '2026-11-29T23:59:59.000Z' },
