@@ -78,15 +78,16 @@ beforeAll(async () => {
 });
 afterAll(async () => t.close());
 
-function pick(s: Record<string, unknown>) {
+function pick(s: object) {
+  const v = s as Record<string, unknown>;
   return {
-    n: s.n,
-    sumStars: s.sumStars,
-    recentCount: s.recentCount,
-    totalRecent: s.totalRecent,
-    oneStarRecent: s.oneStarRecent,
-    totalBaseline: s.totalBaseline,
-    oneStarBaseline: s.oneStarBaseline,
+    n: v.n,
+    sumStars: v.sumStars,
+    recentCount: v.recentCount,
+    totalRecent: v.totalRecent,
+    oneStarRecent: v.oneStarRecent,
+    totalBaseline: v.totalBaseline,
+    oneStarBaseline: v.oneStarBaseline,
   };
 }
 
