@@ -1,6 +1,7 @@
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import { setTimeout as sleep } from 'node:timers/promises';
+import { parseInstant } from '../shared/clock';
 import { latestDue } from '../shared/schemas/schedules.schema';
 import { jobEvents } from '../server/modules/jobs/job-events';
 import {
@@ -236,7 +237,7 @@ export class Scheduler {
           runId: id,
           categoryId: run.categoryId,
           isoWeek,
-          asOf: run.params.asOf ? new Date(run.params.asOf) : (run.dueAt ?? startedAt),
+          asOf: (run.params.asOf ? parseInstant(run.params.asOf) : null) ?? run.dueAt ?? startedAt,
           params: run.params,
           log,
           progress,

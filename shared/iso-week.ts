@@ -76,3 +76,42 @@ export function isoWeekRange(from: string, to: string): string[] {
   }
   return weeks;
 }
+
+/*
+ * The one week boundary. A week's evidence is what was reviewed strictly before the end of its ISO week in
+ * UTC, the Monday 00:00:00 UTC after it: a review at Sunday 23:59:59 UTC counts in that week, one at Monday
+ * 00:00:00 UTC counts from the next week on. The same strictness holds for any cut-off (a what-if, a score
+ * request's asOf), and a window of D days before a cut-off holds what was reviewed strictly after
+ * cut-off − D days. The engine (shared/scoring/summary.ts) decides with the functions and the SQL
+ * (server/modules/snapshots/snapshot-evidence.ts) with the fragments below; tests hold the two together.
+ */
+
+/** The cut-off of a week's evidence: Monday 00:00:00 UTC after the week. */
+export function weekCutoff(label: string): Date {
+  return isoWeekEnd(label);
+}
+
+/** Whether something reviewed at `reviewedAt` is evidence at `cutoff` (strictly before it). */
+export function isEvidenceBefore(reviewedAt: Date | number, cutoff: Date | number): boolean {
+  return +reviewedAt < +cutoff;
+}
+
+/** The start of a window of `days` days that ends at `cutoff`; the start itself is outside the window. */
+export function windowStart(cutoff: Date | number, days: number): Date {
+  return new Date(+cutoff - days * DAY_MS);
+}
+
+/** Whether evidence reviewed at `reviewedAt` falls in the `days` days before `cutoff`. */
+export function isInWindow(reviewedAt: Date | number, cutoff: Date | number, days: number): boolean {
+  return +reviewedAt > windowStart(cutoff, days).getTime();
+}
+
+/** SQL for `isEvidenceBefore`: `column` against the named replacement holding the cut-off. */
+export function evidenceBeforeSql(column: string, cutoffParam = 'cutoff'): string {
+  return `${column} < :${cutoffParam}`;
+}
+
+/** SQL for `isInWindow`: `column` against the named replacement holding `windowStart(cutoff, days)`. */
+export function inWindowSql(column: string, fromParam: string): string {
+  return `${column} > :${fromParam}`;
+}

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { parseCalendarDate, parseInstant } from '../clock';
 import { keyOf } from '../keys';
 
 /*
@@ -142,48 +143,11 @@ export const rowErrorSchema = z.object({
 });
 export type RowError = z.infer<typeof rowErrorSchema>;
 
-const isoDatePattern = /^(\d{4})-(\d{2})-(\d{2})$/;
-const isoDateTimePattern =
-  /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2})(?:\.(\d{1,9}))?)?(Z|[+-]\d{2}:?\d{2})?$/i;
+/** `YYYY-MM-DD` only; midnight UTC, or null for anything else (including 2026-02-30). The one clock: shared/clock.ts. */
+export const parseIsoDate = parseCalendarDate;
 
-function utcDate(year: number, month: number, day: number): Date | null {
-  const date = new Date(Date.UTC(year, month - 1, day));
-  const valid =
-    date.getUTCFullYear() === year && date.getUTCMonth() === month - 1 && date.getUTCDate() === day;
-  return valid ? date : null;
-}
-
-/** `YYYY-MM-DD` only; returns midnight UTC, or null for anything else (including 2026-02-30). */
-export function parseIsoDate(value: string): Date | null {
-  const m = isoDatePattern.exec(value.trim());
-  if (!m) return null;
-  return utcDate(Number(m[1]), Number(m[2]), Number(m[3]));
-}
-
-/**
- * `YYYY-MM-DD`, or `YYYY-MM-DDTHH:mm[:ss[.fff]][Z|±HH:MM|±HHMM]` (a space may replace the `T`). A
- * date-time without an offset is read as UTC; a date alone is midnight UTC. Nothing else is accepted:
- * `01/02/2026` means different days in different countries.
- */
-export function parseTimestamp(value: string): Date | null {
-  const text = value.trim();
-  if (isoDatePattern.test(text)) return parseIsoDate(text);
-  const m = isoDateTimePattern.exec(text);
-  if (!m) return null;
-  const day = utcDate(Number(m[1]), Number(m[2]), Number(m[3]));
-  const [hours, minutes, seconds] = [Number(m[4]), Number(m[5]), Number(m[6] ?? 0)];
-  if (!day || hours > 23 || minutes > 59 || seconds > 59) return null;
-  const millis = Number((m[7] ?? '0').padEnd(3, '0').slice(0, 3));
-  let offsetMinutes = 0;
-  const zone = m[8];
-  if (zone && zone.toUpperCase() !== 'Z') {
-    const digits = zone.slice(1).replace(':', '');
-    const [oh, om] = [Number(digits.slice(0, 2)), Number(digits.slice(2))];
-    if (oh > 14 || om > 59) return null;
-    offsetMinutes = (zone.startsWith('-') ? -1 : 1) * (oh * 60 + om);
-  }
-  return new Date(day.getTime() + ((hours * 60 + minutes - offsetMinutes) * 60 + seconds) * 1000 + millis);
-}
+/** A date (midnight UTC) or a date-time (UTC unless it names an offset), by the one clock in shared/clock.ts. */
+export const parseTimestamp = parseInstant;
 
 const earliest = parseIsoDate(importLimits.earliestDate)!;
 

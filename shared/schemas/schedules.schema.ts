@@ -1,6 +1,7 @@
 import { CronExpressionParser } from 'cron-parser';
 import cronstrue from 'cronstrue';
 import { z } from 'zod';
+import { isoDateSchema } from './score.schema';
 
 export const produceKinds = ['snapshot', 'snapshot_digest'] as const;
 export type ProduceKind = (typeof produceKinds)[number];
@@ -147,7 +148,7 @@ export const schedulePreviewQuerySchema = z.object({
   cron: cronField,
   tz: timeZoneField,
   /** Count the next runs from this instant instead of now. */
-  from: z.iso.datetime({ offset: true }).optional(),
+  from: isoDateSchema.optional(),
 });
 
 export const schedulePreviewSchema = z.object({

@@ -1,13 +1,13 @@
 import { z } from 'zod';
+import { readInstant } from '../clock';
 import { keyOf } from '../keys';
 import { priorMeanStrategies, priorWeightStrategies } from '../scoring/settings';
 
-const ISO_DATE = /^\d{4}-\d{2}-\d{2}(?:[T ]\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)?(?:Z|[+-]\d{2}:?\d{2})?)?$/;
-
-export const isoDateSchema = z
-  .string({ error: 'must be an ISO 8601 date' })
-  .regex(ISO_DATE, 'must be an ISO 8601 date')
-  .refine((v) => Number.isFinite(Date.parse(v)), 'must be a valid date');
+/** Read by the one clock (shared/clock.ts): a date alone is midnight UTC, no offset means UTC. */
+export const isoDateSchema = z.string({ error: 'must be an ISO 8601 date' }).superRefine((value, ctx) => {
+  const read = readInstant(value);
+  if (!read.ok) ctx.addIssue({ code: 'custom', message: read.reason });
+});
 
 const count = z
   .number({ error: 'must be a number' })

@@ -1,3 +1,5 @@
+import { instantMs } from '../clock';
+import { isEvidenceBefore, isInWindow } from '../iso-week';
 import { ScoringInputError } from './errors';
 import type { ScoringSettings } from './settings';
 import { median, wilsonLowerBound } from './stats';
@@ -16,7 +18,7 @@ export type SummarySettings = Pick<
 >;
 
 export function toEpochMs(value: string | Date, path: string): number {
-  const ms = value instanceof Date ? value.getTime() : Date.parse(value);
+  const ms = instantMs(value);
   if (!Number.isFinite(ms)) throw new ScoringInputError('date-invalid', path, 'must be a valid date');
   return ms;
 }
@@ -38,7 +40,7 @@ function checkVotes(value: number | undefined, path: string): number {
 
 /**
  * Turns individual reviews into the summary the SQL path produces, as of the cut-off `asOf`.
- * Reviews dated after the cut-off are left out: they did not exist at the snapshot.
+ * Only reviews strictly before the cut-off count (shared/iso-week.ts, the one week boundary).
  */
 export function summariseReviews(
   reviews: readonly ReviewInput[],
@@ -82,14 +84,14 @@ export function summariseReviews(
     if (score !== undefined && score !== null && !(score >= 0 && score <= 1)) {
       throw new ScoringInputError('reviewer-score-invalid', `${p}.reviewerScore`, 'must be between 0 and 1');
     }
-    if (at > asOfMs) continue;
+    if (!isEvidenceBefore(at, asOfMs)) continue;
     const age = (asOfMs - at) / DAY_MS;
     n++;
     sumStars += stars;
     hist[stars - 1]!++;
     ages.push(age);
     if (at > newest) newest = at;
-    if (age < settings.recentWindowDays) recentCount++;
+    if (isInWindow(at, asOfMs, settings.recentWindowDays)) recentCount++;
     const w = Math.pow(0.5, age / settings.halfLifeDays);
     dw += w;
     dws += w * stars;
@@ -107,7 +109,7 @@ export function summariseReviews(
       rw += score;
       rws += score * stars;
     }
-    if (age < settings.clusterWindowDays) {
+    if (isInWindow(at, asOfMs, settings.clusterWindowDays)) {
       totalRecent++;
       if (stars === 1) {
         oneRecent++;
@@ -118,7 +120,7 @@ export function summariseReviews(
           }
         }
       }
-    } else if (age < settings.clusterWindowDays + settings.clusterBaselineDays) {
+    } else if (isInWindow(at, asOfMs, settings.clusterWindowDays + settings.clusterBaselineDays)) {
       totalBase++;
       if (stars === 1) oneBase++;
     }

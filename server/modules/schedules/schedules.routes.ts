@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { parseInstant } from '../../../shared/clock';
 import { jobRunSchema } from '../../../shared/schemas/jobs.schema';
 import {
   runNowSchema,
@@ -47,7 +48,7 @@ export const scheduleRoutes = [
     query: schedulePreviewQuerySchema,
     response: schedulePreviewSchema,
     handler: (_req, _res, { query }) =>
-      previewSchedule(query.cron, query.tz, query.from ? new Date(query.from) : new Date()),
+      previewSchedule(query.cron, query.tz, (query.from ? parseInstant(query.from) : null) ?? new Date()),
   }),
   route({
     method: 'post',

@@ -1,8 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { ItemSummary, ScoringSettings, StarHistogram } from '../../../shared/scoring';
+import { evidenceBeforeSql, inWindowSql, windowStart } from '../../../shared/iso-week';
 import { db } from '../../db/sequelize';
-
-const DAY_MS = 86_400_000;
 
 export type CategoryEvidence = {
   /** The engine's input, one summary per item that had any evidence at the cut-off. */
@@ -79,35 +78,37 @@ export async function loadCategoryEvidence(
   transaction?: Transaction,
 ): Promise<CategoryEvidence> {
   const sequelize = db();
-  const at = cutoff.getTime();
   const replacements: Record<string, unknown> = {
     categoryId,
     cutoff,
     hl: settings.halfLifeDays,
     hz: settings.helpfulZ,
-    recentFrom: new Date(at - settings.recentWindowDays * DAY_MS),
-    clusterFrom: new Date(at - settings.clusterWindowDays * DAY_MS),
-    baselineFrom: new Date(at - (settings.clusterWindowDays + settings.clusterBaselineDays) * DAY_MS),
+    recentFrom: windowStart(cutoff, settings.recentWindowDays),
+    clusterFrom: windowStart(cutoff, settings.clusterWindowDays),
+    baselineFrom: windowStart(cutoff, settings.clusterWindowDays + settings.clusterBaselineDays),
   };
-  const scope =
-    'FROM reviews r JOIN items i ON i.id = r.item_id WHERE i.category_id = :categoryId AND r.reviewed_at <= :cutoff';
+  // The one week boundary (shared/iso-week.ts): evidence is strictly before the cut-off.
+  const scope = `FROM reviews r JOIN items i ON i.id = r.item_id WHERE i.category_id = :categoryId AND ${evidenceBeforeSql('r.reviewed_at')}`;
+  const recent = inWindowSql('r.reviewed_at', 'recentFrom');
+  const cluster = inWindowSql('r.reviewed_at', 'clusterFrom');
+  const baseline = `NOT ${cluster} AND ${inWindowSql('r.reviewed_at', 'baselineFrom')}`;
 
   const aggregates = await sequelize.query<ReviewAggregate>(
     `SELECT r.item_id, MIN(i.sku) AS sku, MIN(i.title) AS title,
        COUNT(*) AS n, SUM(r.stars) AS sum_stars,
        SUM(r.stars = 1) AS h1, SUM(r.stars = 2) AS h2, SUM(r.stars = 3) AS h3, SUM(r.stars = 4) AS h4, SUM(r.stars = 5) AS h5,
        MAX(r.reviewed_at) AS newest,
-       SUM(r.reviewed_at > :recentFrom) AS recent_count,
+       SUM(${recent}) AS recent_count,
        SUM(POW(0.5, ${ageDays} / :hl)) AS dw,
        SUM(POW(0.5, ${ageDays} / :hl) * r.stars) AS dws,
        SUM(POW(0.25, ${ageDays} / :hl)) AS dw2,
        SUM(${wilson}) AS hw,
        SUM(${wilson} * r.stars) AS hws,
        SUM(r.reviewer_score) AS rw, SUM(r.reviewer_score * r.stars) AS rws,
-       SUM(r.reviewed_at > :clusterFrom) AS total_recent,
-       SUM(r.reviewed_at > :clusterFrom AND r.stars = 1) AS one_recent,
-       SUM(r.reviewed_at <= :clusterFrom AND r.reviewed_at > :baselineFrom) AS total_base,
-       SUM(r.reviewed_at <= :clusterFrom AND r.reviewed_at > :baselineFrom AND r.stars = 1) AS one_base
+       SUM(${cluster}) AS total_recent,
+       SUM(${cluster} AND r.stars = 1) AS one_recent,
+       SUM(${baseline}) AS total_base,
+       SUM(${baseline} AND r.stars = 1) AS one_base
      ${scope}
      GROUP BY r.item_id`,
     { replacements, type: QueryTypes.SELECT, transaction },
@@ -122,7 +123,7 @@ export async function loadCategoryEvidence(
     });
     const rows = await sequelize.query<Record<string, number>>(
       `SELECT r.item_id, ${phraseSums.join(', ')}
-       ${scope} AND r.stars = 1 AND r.reviewed_at > :clusterFrom AND r.body IS NOT NULL
+       ${scope} AND r.stars = 1 AND ${cluster} AND r.body IS NOT NULL
        GROUP BY r.item_id`,
       { replacements, type: QueryTypes.SELECT, transaction },
     );
@@ -193,9 +194,9 @@ export async function loadCategoryEvidence(
      JOIN items i ON i.id = a.item_id
      JOIN (SELECT o.item_id, MAX(o.observed_on) AS observed_on
            FROM aggregate_observations o JOIN items oi ON oi.id = o.item_id
-           WHERE oi.category_id = :categoryId AND o.observed_on < :cutoff
+           WHERE oi.category_id = :categoryId AND ${evidenceBeforeSql('o.observed_on')}
            GROUP BY o.item_id) latest ON latest.item_id = a.item_id AND latest.observed_on = a.observed_on
-     WHERE NOT EXISTS (SELECT 1 FROM reviews r WHERE r.item_id = a.item_id AND r.reviewed_at <= :cutoff)`,
+     WHERE NOT EXISTS (SELECT 1 FROM reviews r WHERE r.item_id = a.item_id AND ${evidenceBeforeSql('r.reviewed_at')})`,
     { replacements, type: QueryTypes.SELECT, transaction },
   );
   for (const o of observations) {

@@ -1,6 +1,6 @@
 import { QueryTypes, UniqueConstraintError } from 'sequelize';
 import {
-  isoWeekEnd,
+  weekCutoff,
   isoWeekLabel,
   isoWeekRange,
   isoWeekStart,
@@ -131,7 +131,7 @@ export async function takeSnapshot(options: TakeSnapshotOptions): Promise<Snapsh
   if (!isIsoWeekLabel(isoWeek))
     throw new AppError('bad_request', `"${isoWeek}" is not an ISO week such as 2026-W48.`, 400);
   if (isoWeekStart(isoWeek) > now) throw new AppError('bad_request', `${isoWeek} has not started yet.`, 400);
-  const cutoff = new Date(Math.min(isoWeekEnd(isoWeek).getTime(), now.getTime()));
+  const cutoff = new Date(Math.min(weekCutoff(isoWeek).getTime(), now.getTime()));
 
   const category = await Category.findByPk(options.categoryId);
   if (!category) throw AppError.notFound('The category');

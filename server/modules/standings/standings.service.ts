@@ -2,6 +2,7 @@ import { QueryTypes } from 'sequelize';
 import { keyOf } from '../../../shared/keys';
 import type { ResolvedParameters } from '../../../shared/scoring';
 import { wilsonLowerBound } from '../../../shared/scoring';
+import { evidenceBeforeSql } from '../../../shared/iso-week';
 import type {
   DriftChart,
   Freshness,
@@ -573,7 +574,7 @@ export async function getItemDetail(
       body: string | null;
     }>(
       `SELECT stars, reviewed_at, helpful_yes, helpful_no, verified, body FROM reviews
-       WHERE item_id = :itemId AND reviewed_at <= :cutoff AND helpful_yes > 0`,
+       WHERE item_id = :itemId AND ${evidenceBeforeSql('reviewed_at')} AND helpful_yes > 0`,
       { replacements: { itemId: item.id, cutoff: new Date(chosen.cutoff) }, type: QueryTypes.SELECT },
     );
     helpfulReviews = reviews
