@@ -39,6 +39,50 @@ export const terms = {
   ties: 'Ranks use standard competition ranking: tied scores share a rank and the next rank is skipped (1, 2, 2, 4). Within a tie the list shows the item with more reviews first, then by SKU; that order does not change the rank.',
 } as const;
 
+/** What a person calls a field of a form or setting; an error message names this, never a field path. */
+export const fieldLabels: Record<string, string> = {
+  priorWeightStrategy: 'Prior weight strategy',
+  priorWeightValue: 'Prior weight m',
+  priorMeanStrategy: 'Prior mean strategy',
+  priorMeanValue: 'Prior mean C',
+  z: 'Lower bound z',
+  helpfulZ: 'Helpfulness z',
+  halfLifeDays: 'Recency half-life (days)',
+  recentWindowDays: 'Recent window (days)',
+  staleAfterDays: 'Stale after (days)',
+  thinEvidenceThreshold: 'Thin evidence below (reviews)',
+  clusterWindowDays: 'Negative cluster window (days)',
+  clusterBaselineDays: 'Negative cluster baseline (days)',
+  clusterPValue: 'Negative cluster p-value',
+  clusterMinCount: 'Negative cluster minimum count',
+  clusterPhrases: 'Watched phrases',
+  whatItTakesStars: 'What it would take (stars)',
+  moverThreshold: 'Mover threshold (places)',
+  topOverlapDepth: 'Top overlap depth',
+  rboP: 'Rank-biased overlap p',
+  recipients: 'Extra recipients',
+  categoryIds: 'Categories',
+  cron: 'Cron expression',
+  tz: 'Time zone',
+  timeZone: 'Time zone',
+};
+
+/** The label of the innermost named field of a path like settings.priorWeightValue or recipients.0. */
+export function fieldLabel(path: readonly PropertyKey[]): string | null {
+  const name = [...path].reverse().find((p): p is string => typeof p === 'string');
+  if (!name) return null;
+  const known = fieldLabels[name];
+  if (known) return known;
+  const words = name.replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase();
+  return words.charAt(0).toUpperCase() + words.slice(1);
+}
+
+/** "Prior weight m: must be given" for an engine error at settings.priorWeightValue. */
+export function inUserWords(path: string, reason: string): string {
+  const label = path ? fieldLabel(path.split('.')) : null;
+  return label ? `${label}: ${reason}` : reason;
+}
+
 /** The name of the start page: a manager sees only their own categories there. */
 export const homeLabel = (role: string): string => (role === 'manager' ? 'My categories' : 'Overview');
 

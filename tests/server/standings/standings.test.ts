@@ -436,6 +436,24 @@ describe('PUT /api/categories/:slug/settings', () => {
       .expect(403);
   });
 
+  it('names a bad setting in the words of the form, not by its field path', async () => {
+    const res = await admin
+      .put(`/api/categories/${slug}/settings`)
+      .set('x-csrf-token', admin.csrf)
+      .send({ priorWeightValue: -3 })
+      .expect(400);
+    expect(res.body.error.message).toMatch(/^Prior weight m: /);
+    expect(res.body.error.message).not.toMatch(/priorWeightValue|settings\./);
+    // The engine's own check (fixed needs a value) speaks the same words.
+    const fixed = await admin
+      .put(`/api/categories/${slug}/settings`)
+      .set('x-csrf-token', admin.csrf)
+      .send({ priorWeightStrategy: 'fixed', priorWeightValue: null })
+      .expect(400);
+    expect(fixed.body.error.message).not.toMatch(/priorWeightValue|settings\./);
+    expect(fixed.body.error.message).toMatch(/^Prior weight m: /);
+  });
+
   it('refuses settings the engine cannot use, and unknown fields', async () => {
     await admin
       .put(`/api/categories/${slug}/settings`)
