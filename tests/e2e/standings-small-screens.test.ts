@@ -75,6 +75,14 @@ describe('standings at 390 px and 1440 px', () => {
     }
   });
 
+  it('takes the search placeholder from the category on screen', async () => {
+    const page = await signedIn('analyst', 1440);
+    await page.goto(`${server.url}/categories/trail-packs`);
+    const search = page.getByRole('searchbox');
+    await expect.poll(() => search.getAttribute('placeholder')).toMatch(/^e\.g\. TP-/);
+    await page.context().close();
+  });
+
   it('moves between the category tabs with the arrow keys, Home and End', async () => {
     const page = await signedIn('analyst', 1440);
     await page.goto(`${server.url}/categories/kettles-and-brewers`);

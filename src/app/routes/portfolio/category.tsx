@@ -197,6 +197,7 @@ export function Component() {
                   <StandingsFilters
                     key={`${view.q ?? ''}|${view.driftMin ?? ''}|${view.driftMax ?? ''}`}
                     view={view}
+                    example={standings.data?.rows[0]}
                     onChange={(patch) => update(patch)}
                   />
                   {standings.isPending ? <Loading label="Loading the standings…" /> : null}
@@ -216,7 +217,8 @@ export function Component() {
                         pseudo-reviews at C = <span className="font-mono">{standings.data.C.toFixed(3)}</span>
                         ; thin below{' '}
                         <span className="font-mono">{standings.data.thinThreshold.toFixed(1)}</span> reviews;
-                        stale after {countOf(standings.data.staleAfterDays, 'day')}. {terms.drift}.
+                        stale after {countOf(standings.data.staleAfterDays, 'day')}. {terms.drift}.{' '}
+                        {terms.ties}
                       </p>
                       <StandingsTable
                         slug={slug}

@@ -33,7 +33,10 @@ function Panel({
   className?: string;
 }) {
   return (
-    <section aria-labelledby={id} className={`rounded-lg border border-ink-100 bg-white p-4 ${className}`}>
+    <section
+      aria-labelledby={id}
+      className={`min-w-0 rounded-lg border border-ink-100 bg-white p-4 ${className}`}
+    >
       <h2 id={id} className="mb-2 font-bold text-ink-900">
         {title}
       </h2>
@@ -117,8 +120,11 @@ export function Component() {
           <RankTimeline timeline={d.timeline} sku={d.sku} />
           <details className="mt-2 text-sm">
             <summary className="cursor-pointer font-semibold text-ink-700">Ranks as a table</summary>
-            <div className="mt-2 max-h-64 overflow-y-auto">
-              <table className="w-full text-sm" data-testid="timeline-table">
+            <div className="mt-2 max-h-64 overflow-auto">
+              <table
+                className="w-full text-sm [&_td]:px-2 [&_th]:px-2 [&_th]:whitespace-nowrap"
+                data-testid="timeline-table"
+              >
                 <caption className="sr-only">Naive and smoothed rank per week</caption>
                 <thead className="text-left text-xs uppercase text-ink-500">
                   <tr>
