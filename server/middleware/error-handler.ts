@@ -6,6 +6,7 @@ import {
   ValidationError as OrmValidationError,
 } from 'sequelize';
 import { ZodError } from 'zod';
+import { fieldLabel } from '../../shared/vocabulary';
 import { AppError } from '../lib/app-error';
 import { logger } from '../lib/logger';
 
@@ -30,9 +31,15 @@ export function toErrorResponse(err: unknown): { status: number; body: Body } {
     };
   }
   if (err instanceof ZodError) {
+    // details keep the path for programs; the message a person reads names the field in their words.
     const details = err.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
-    const first = details[0];
-    const message = first ? `${first.path || 'request'}: ${first.message}` : 'The request is not valid.';
+    const first = err.issues[0];
+    const label = first ? fieldLabel(first.path) : null;
+    const message = first
+      ? label
+        ? `${label}: ${first.message}`
+        : first.message
+      : 'The request is not valid.';
     return { status: 400, body: { error: { code: 'validation_failed', message, details } } };
   }
   if (err instanceof UniqueConstraintError) {

@@ -129,7 +129,12 @@ export const scheduleInputSchema = z.object({
     .nullable(),
   recipients: z
     .array(
-      z.string().trim().toLowerCase().email('Each extra recipient must be a valid e-mail address.').max(254),
+      z
+        .string()
+        .trim()
+        .toLowerCase()
+        .email({ error: (iss) => `${String(iss.input)} is not a valid e-mail address.` })
+        .max(254),
     )
     .max(50, 'Use at most 50 extra recipients.')
     .default([]),

@@ -105,6 +105,9 @@ export type StandingsRow = z.infer<typeof standingsRowSchema>;
 export const standingsSchema = z.object({
   week: weekSummarySchema,
   m: z.number(),
+  /** The strategy the category asks for, and the one that set m (they differ after a fallback). */
+  priorWeightStrategy: z.enum(priorWeightStrategies),
+  priorWeightApplied: z.enum(priorWeightStrategies),
   C: z.number(),
   thinThreshold: z.number(),
   staleAfterDays: z.number(),
@@ -120,6 +123,7 @@ export type Standings = z.infer<typeof standingsSchema>;
 export const driftChartSchema = z.object({
   isoWeek: z.string(),
   skus: z.array(z.string()),
+  titles: z.array(z.string()),
   naive: z.array(z.number().int()),
   smoothed: z.array(z.number().int()),
   n: z.array(z.number().int()),
@@ -196,6 +200,8 @@ export const itemDetailSchema = z.object({
       flags: z.array(itemFlagSchema),
       recurringPhrases: z.array(z.object({ phrase: z.string(), count: z.number().int() })),
       m: z.number(),
+      priorWeightStrategy: z.enum(priorWeightStrategies),
+      priorWeightApplied: z.enum(priorWeightStrategies),
       C: z.number(),
       halfLifeDays: z.number(),
       whatItTakesStars: z.number(),

@@ -1,11 +1,12 @@
 import type { RoleCode } from '../../shared/auth';
+import { homeLabel } from '../../shared/vocabulary';
 
 export type NavItem = { to: string; label: string; roles: readonly RoleCode[] | 'any' };
 
 /** The navigation of each role; the server enforces the same rules on every route. */
 export const navItems: NavItem[] = [
-  { to: '/', label: 'Overview', roles: ['admin', 'ops', 'analyst', 'exec'] },
-  { to: '/', label: 'My categories', roles: ['manager'] },
+  { to: '/', label: homeLabel('admin'), roles: ['admin', 'ops', 'analyst', 'exec'] },
+  { to: '/', label: homeLabel('manager'), roles: ['manager'] },
   { to: '/calibrate', label: 'Calibration', roles: ['analyst', 'manager', 'admin'] },
   { to: '/imports', label: 'Imports', roles: ['admin', 'ops', 'manager'] },
   { to: '/schedules', label: 'Schedules', roles: ['ops', 'admin'] },

@@ -15,4 +15,10 @@ export const fmt = {
     if (days < 1) return 'today';
     return formatDistanceStrict(0, days * 86_400_000, { roundingMethod: 'floor' });
   },
+  /** "on the day of the cut-off" rather than "today before the cut-off". */
+  ageBeforeCutoff: (days: number | null | undefined) => {
+    if (days === null || days === undefined) return 'no review yet';
+    if (days < 1) return 'on the day of the cut-off';
+    return `${fmt.age(days)} before the cut-off`;
+  },
 };

@@ -1,4 +1,5 @@
 import type { CategoryDigestData, DigestItem, PaperSize } from '../../shared/schemas/digests.schema';
+import { priorWeightApplied, standingsColumns as label, terms } from '../../shared/vocabulary';
 import {
   bullets,
   dash,
@@ -66,8 +67,8 @@ export function keyTiles(data: CategoryDigestData): Tile[] {
   return [
     { label: 'Items ranked', value: int(f.itemCount), ...deltaNote(f.itemCount, p?.itemCount, 0) },
     { label: 'Reviews counted', value: int(f.reviewCount), ...deltaNote(f.reviewCount, p?.reviewCount, 0) },
-    { label: 'Spearman rho', value: num(f.spearmanRho, 3), ...deltaNote(f.spearmanRho, p?.spearmanRho, 3) },
-    { label: 'Kendall tau-b', value: num(f.kendallTauB, 3), ...deltaNote(f.kendallTauB, p?.kendallTauB, 3) },
+    { label: terms.spearman, value: num(f.spearmanRho, 3), ...deltaNote(f.spearmanRho, p?.spearmanRho, 3) },
+    { label: terms.kendall, value: num(f.kendallTauB, 3), ...deltaNote(f.kendallTauB, p?.kendallTauB, 3) },
     {
       label: 'Mean drift (places)',
       value: num(f.meanAbsDrift, 1),
@@ -84,7 +85,7 @@ export function keyTiles(data: CategoryDigestData): Tile[] {
       note: `RBO ${num(f.rbo.extrapolated, 3)} (p = ${f.rbo.p})`,
     },
     {
-      label: 'Flags',
+      label: label.flags.label,
       value: `${f.thinCount} · ${f.staleCount} · ${f.negativeClusterCount}`,
       note: 'thin · stale · negative clusters',
     },
@@ -152,8 +153,8 @@ function contents(c: Canvas, sections: Section[]): void {
 
 function itemCell(): Column<DigestItem>[] {
   return [
-    { header: 'SKU', share: 1.15, style: 'mono', value: (i) => i.sku },
-    { header: 'Item', share: 3.4, value: (i) => i.title || dash },
+    { header: label.sku.label, share: 1.15, style: 'mono', value: (i) => i.sku },
+    { header: label.title.label, share: 3.4, value: (i) => i.title || dash },
   ];
 }
 
@@ -218,11 +219,17 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
       c,
       [
         ...itemCell(),
-        { header: 'Reviews', share: 0.8, align: 'right', value: (i) => int(i.n) },
-        { header: 'Raw mean', share: 0.85, align: 'right', value: (i) => num(i.rawMean) },
-        { header: 'Smoothed', share: 0.85, align: 'right', value: (i) => num(i.smoothed, 3) },
-        { header: 'Raw #', share: 0.8, align: 'right', value: (i) => int(i.naiveRank) },
-        { header: 'Smoothed #', share: 1, align: 'right', style: 'bold', value: (i) => int(i.smoothedRank) },
+        { header: label.n.label, share: 0.8, align: 'right', value: (i) => int(i.n) },
+        { header: label.rawMean.label, share: 0.85, align: 'right', value: (i) => num(i.rawMean) },
+        { header: label.smoothed.label, share: 0.85, align: 'right', value: (i) => num(i.smoothed, 3) },
+        { header: label.naiveRank.label, share: 0.8, align: 'right', value: (i) => int(i.naiveRank) },
+        {
+          header: label.smoothedRank.label,
+          share: 1,
+          align: 'right',
+          style: 'bold',
+          value: (i) => int(i.smoothedRank),
+        },
       ],
       thin,
       { continued: 'Leaders on thin evidence' },
@@ -239,12 +246,18 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
       c,
       [
         ...itemCell(),
-        { header: 'Reviews', share: 0.8, align: 'right', value: (i) => int(i.n) },
-        { header: 'Raw mean', share: 0.85, align: 'right', value: (i) => num(i.rawMean) },
-        { header: 'Raw #', share: 0.8, align: 'right', value: (i) => int(i.naiveRank) },
-        { header: 'Smoothed #', share: 1, align: 'right', style: 'bold', value: (i) => int(i.smoothedRank) },
+        { header: label.n.label, share: 0.8, align: 'right', value: (i) => int(i.n) },
+        { header: label.rawMean.label, share: 0.85, align: 'right', value: (i) => num(i.rawMean) },
+        { header: label.naiveRank.label, share: 0.8, align: 'right', value: (i) => int(i.naiveRank) },
         {
-          header: 'Drift',
+          header: label.smoothedRank.label,
+          share: 1,
+          align: 'right',
+          style: 'bold',
+          value: (i) => int(i.smoothedRank),
+        },
+        {
+          header: label.drift.label,
           share: 0.7,
           align: 'right',
           style: 'monoBold',
@@ -275,7 +288,13 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
           align: 'right',
           value: (i) => pct(i.recentShare),
         },
-        { header: 'Smoothed #', share: 1, align: 'right', style: 'bold', value: (i) => int(i.smoothedRank) },
+        {
+          header: label.smoothedRank.label,
+          share: 1,
+          align: 'right',
+          style: 'bold',
+          value: (i) => int(i.smoothedRank),
+        },
       ],
       stale.slice(0, 15),
       { continued: 'Stale evidence' },
@@ -328,10 +347,10 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
     table(
       c,
       [
-        { header: 'SKU', share: 1.15, style: 'mono', value: (m) => m.sku },
-        { header: 'Item', share: 3.2, value: (m) => bySku.get(m.sku)?.title ?? dash },
+        { header: label.sku.label, share: 1.15, style: 'mono', value: (m) => m.sku },
+        { header: label.title.label, share: 3.2, value: (m) => bySku.get(m.sku)?.title ?? dash },
         {
-          header: 'Raw move',
+          header: label.naiveMovement.label,
           share: 1.05,
           align: 'right',
           style: 'monoBold',
@@ -340,7 +359,7 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
             m.naiveMovement > 0 ? colours.kelp : m.naiveMovement < 0 ? colours.coral : undefined,
         },
         {
-          header: 'Smoothed move',
+          header: label.smoothedMovement.label,
           share: 1.05,
           align: 'right',
           style: 'monoBold',
@@ -348,7 +367,12 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
           colour: (m) =>
             m.smoothedMovement > 0 ? colours.kelp : m.smoothedMovement < 0 ? colours.coral : undefined,
         },
-        { header: 'Smoothed #', share: 1, align: 'right', value: (m) => int(bySku.get(m.sku)?.smoothedRank) },
+        {
+          header: label.smoothedRank.label,
+          share: 1,
+          align: 'right',
+          value: (m) => int(bySku.get(m.sku)?.smoothedRank),
+        },
       ],
       f.movers.slice(0, 20),
       { continued: 'Movers' },
@@ -362,8 +386,14 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
     c,
     [
       ...itemCell(),
-      { header: 'Rank', share: 0.6, align: 'right', style: 'bold', value: (i) => int(i.smoothedRank) },
-      { header: 'Smoothed', share: 0.85, align: 'right', value: (i) => num(i.smoothed, 3) },
+      {
+        header: label.smoothedRank.label,
+        share: 0.8,
+        align: 'right',
+        style: 'bold',
+        value: (i) => int(i.smoothedRank),
+      },
+      { header: label.smoothed.label, share: 0.85, align: 'right', value: (i) => num(i.smoothed, 3) },
       { header: 'To pass', share: 1.1, style: 'mono', value: (i) => i.aboveSku ?? dash },
       {
         header: `${v}-star reviews needed`,
@@ -385,28 +415,34 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
   c.newPage();
   section(
     'Full standings',
-    `All ${f.itemCount} items by smoothed score. Lower bound: the posterior mean minus z = ${num(data.params.z, 2)} standard deviations. Drift: raw rank minus smoothed rank.`,
+    `All ${f.itemCount} items by smoothed score. Lower bound: the posterior mean minus z = ${num(data.params.z, 2)} standard deviations. Drift: naive rank minus smoothed rank.`,
   );
   table(
     c,
     [
-      { header: '#', share: 0.45, align: 'right', style: 'bold', value: (i) => int(i.smoothedRank) },
-      { header: 'SKU', share: 1.05, style: 'mono', value: (i) => i.sku },
-      { header: 'Item', share: 3, value: (i) => i.title || dash },
-      { header: 'Reviews', share: 0.75, align: 'right', value: (i) => int(i.n) },
-      { header: 'Raw', share: 0.55, align: 'right', value: (i) => num(i.rawMean) },
-      { header: 'Score', share: 0.8, align: 'right', value: (i) => num(i.smoothed, 3) },
-      { header: 'Lower', share: 0.65, align: 'right', value: (i) => num(i.lowerBound, 3) },
-      { header: 'Raw #', share: 0.6, align: 'right', value: (i) => int(i.naiveRank) },
       {
-        header: 'Drift',
+        header: label.smoothedRank.label,
+        share: 1.1,
+        align: 'right',
+        style: 'bold',
+        value: (i) => int(i.smoothedRank),
+      },
+      { header: label.sku.label, share: 1.05, style: 'mono', value: (i) => i.sku },
+      { header: label.title.label, share: 2.0, value: (i) => i.title || dash },
+      { header: label.n.label, share: 0.75, align: 'right', value: (i) => int(i.n) },
+      { header: label.rawMean.label, share: 0.95, align: 'right', value: (i) => num(i.rawMean) },
+      { header: label.smoothed.label, share: 0.95, align: 'right', value: (i) => num(i.smoothed, 3) },
+      { header: label.lowerBound.label, share: 1.1, align: 'right', value: (i) => num(i.lowerBound, 3) },
+      { header: label.naiveRank.label, share: 0.85, align: 'right', value: (i) => int(i.naiveRank) },
+      {
+        header: label.drift.label,
         share: 0.6,
         align: 'right',
         style: 'mono',
         value: (i) => signed(i.drift),
         colour: (i) => (i.drift > 0 ? colours.kelp : i.drift < 0 ? colours.coral : undefined),
       },
-      { header: 'Flags', share: 1.2, value: flags, colour: () => colours.brass700 },
+      { header: label.flags.label, share: 0.9, value: flags, colour: () => colours.brass700 },
     ],
     data.items,
     { size: 7.5, rowHeight: 13, continued: 'Full standings' },
@@ -464,10 +500,7 @@ function footer(c: Canvas, data: CategoryDigestData, page: number, pages: number
 export function methodRows(data: CategoryDigestData): [string, string][] {
   const p = data.params;
   return [
-    [
-      'Prior weight m',
-      `${num(p.m, 3)} (strategy: ${p.priorWeightStrategy}${p.priorWeightApplied !== p.priorWeightStrategy ? `, applied: ${p.priorWeightApplied}` : ''})`,
-    ],
+    ['Prior weight m', `${num(p.m, 3)}, from the ${priorWeightApplied(p)}`],
     ['Prior mean C', `${num(p.C, 4)} (strategy: ${p.priorMeanStrategy})`],
     [
       'Bühlmann EPV / VHM',
@@ -512,8 +545,8 @@ function methods(c: Canvas, data: CategoryDigestData): void {
     [
       'Raw mean: the sum of stars over the number of reviews. The naive rank sorts by it.',
       'Smoothed score (Bayesian average): (m × C + n × raw mean) / (m + n), the raw mean pulled towards C with the weight of m reviews. The smoothed rank sorts by it.',
-      'Ranks use standard competition ranking (1, 2, 2, 4); ties are broken by more reviews, then by SKU. Rank correlations use average ranks for ties.',
-      'Drift is the raw rank minus the smoothed rank: above zero when smoothing lifts an item. Rank-biased overlap follows Webber, Moffat and Zobel (2010).',
+      `${terms.ties} Rank correlations use average ranks for ties.`,
+      'Drift is the naive rank minus the smoothed rank: above zero when smoothing lifts an item. Rank-biased overlap follows Webber, Moffat and Zobel (2010).',
       'What it would take: the smallest k with (m × C + n × r + v × k) / (m + n + k) above the next item’s score.',
       ...data.params.notes,
     ],

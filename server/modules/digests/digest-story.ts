@@ -6,6 +6,7 @@ import type {
 } from '../../../shared/schemas/digests.schema';
 import type { CategoryFigures, ResolvedParameters } from '../../../shared/scoring';
 import { countOf } from '../../../shared/plural';
+import { terms } from '../../../shared/vocabulary';
 
 /** A title short enough for a sentence; tables cut by measured width instead. */
 export function shortTitle(title: string, max = 48): string {
@@ -48,7 +49,7 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
     `${countOf(f.itemCount, 'item')} with ${countOf(f.reviewCount, 'review')}; the typical rating C is ${params.C.toFixed(2)} stars and each item's mean is pulled towards it with the weight of ${params.m.toFixed(1)} reviews.`,
   );
   headline.push(
-    `The raw and smoothed orderings ${agreement(f.spearmanRho)} (Spearman's rho ${fixed(f.spearmanRho, 3)}); ${f.topOverlap.shared} of the top ${f.topOverlap.depth} are the same in both.`,
+    `The raw and smoothed orderings ${agreement(f.spearmanRho)} (${terms.spearman} ${fixed(f.spearmanRho, 3)}); ${f.topOverlap.shared} of the top ${f.topOverlap.depth} are the same in both.`,
   );
   const depth = Math.max(20, Math.ceil(items.length * 0.1));
   const thinLeaders = items
@@ -159,8 +160,8 @@ export function keyFigures(data: CategoryDigestData): DigestKeyFigure[] {
   return [
     row('Items ranked', f.itemCount.toLocaleString('en-GB'), delta(f.itemCount, p?.itemCount, 0)),
     row('Reviews counted', f.reviewCount.toLocaleString('en-GB'), delta(f.reviewCount, p?.reviewCount, 0)),
-    row("Spearman's rho", fixed(f.spearmanRho, 3), delta(f.spearmanRho, p?.spearmanRho, 3)),
-    row("Kendall's tau-b", fixed(f.kendallTauB, 3), delta(f.kendallTauB, p?.kendallTauB, 3)),
+    row(terms.spearman, fixed(f.spearmanRho, 3), delta(f.spearmanRho, p?.spearmanRho, 3)),
+    row(terms.kendall, fixed(f.kendallTauB, 3), delta(f.kendallTauB, p?.kendallTauB, 3)),
     row('Mean |drift|', f.meanAbsDrift.toFixed(1), delta(f.meanAbsDrift, p?.meanAbsDrift, 1)),
     row(`Top ${f.topOverlap.depth} shared`, `${f.topOverlap.shared} of ${f.topOverlap.depth}`, undefined),
     row('Thin · stale · clusters', `${f.thinCount} · ${f.staleCount} · ${f.negativeClusterCount}`, undefined),

@@ -15,6 +15,7 @@ import {
   type PreviousRankingEntry,
   type ScoringSettings,
 } from '../../../shared/scoring';
+import { inUserWords } from '../../../shared/vocabulary';
 import { Category, Snapshot } from '../../db/models';
 import type { SnapshotRowDetails } from '../../db/models/snapshot-row.model';
 import { db } from '../../db/sequelize';
@@ -45,7 +46,11 @@ export function categorySettings(stored: Record<string, unknown> | null | undefi
     return resolveSettings((stored ?? {}) as Partial<ScoringSettings>);
   } catch (err) {
     if (err instanceof ScoringInputError) {
-      throw new AppError('bad_request', `The category's scoring settings are not valid: ${err.message}`, 400);
+      throw new AppError(
+        'bad_request',
+        `The category's scoring settings are not valid: ${inUserWords(err.path, err.reason)}`,
+        400,
+      );
     }
     throw err;
   }

@@ -1,6 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import { keyOf } from '../../../shared/keys';
 import type { ResolvedParameters } from '../../../shared/scoring';
+import { countOf } from '../../../shared/plural';
 import { wilsonLowerBound } from '../../../shared/scoring';
 import { evidenceBeforeSql } from '../../../shared/iso-week';
 import type {
@@ -14,6 +15,7 @@ import type {
   StandingsSort,
   WeekSummary,
 } from '../../../shared/schemas/standings.schema';
+import { priorWeightApplied, standingsColumns } from '../../../shared/vocabulary';
 import { Category } from '../../db/models';
 import type { SnapshotRowDetails } from '../../db/models/snapshot-row.model';
 import { db } from '../../db/sequelize';
@@ -286,6 +288,8 @@ export async function getStandings(category: CategoryRef, query: StandingsQuery)
   return {
     week: snapshot.summary,
     m: snapshot.params.m,
+    priorWeightStrategy: snapshot.params.priorWeightStrategy,
+    priorWeightApplied: snapshot.params.priorWeightApplied,
     C: snapshot.params.C,
     thinThreshold: snapshot.params.thinEvidenceThreshold,
     staleAfterDays: snapshot.params.staleAfterDays,
@@ -302,24 +306,28 @@ const flagList = (r: StandingsRow) =>
     .filter(Boolean)
     .join(' ');
 
-const csvColumns: CsvColumn<StandingsRow>[] = [
-  { header: 'smoothed_rank', value: 'smoothedRank' },
-  { header: 'naive_rank', value: 'naiveRank' },
-  { header: 'drift', value: 'drift' },
-  { header: 'sku', value: 'sku' },
-  { header: 'title', value: 'title' },
-  { header: 'reviews', value: 'n' },
-  { header: 'raw_mean', value: (r) => (r.rawMean === null ? '' : r.rawMean.toFixed(4)) },
-  { header: 'smoothed', value: (r) => r.smoothed.toFixed(4) },
-  { header: 'lower_bound', value: (r) => r.lowerBound.toFixed(4) },
+const w = standingsColumns;
+const csvColumns = (params: ResolvedParameters): CsvColumn<StandingsRow>[] => [
+  { header: w.smoothedRank.csv, value: 'smoothedRank' },
+  { header: w.naiveRank.csv, value: 'naiveRank' },
+  { header: w.drift.csv, value: 'drift' },
+  { header: w.sku.csv, value: 'sku' },
+  { header: w.title.csv, value: 'title' },
+  { header: w.n.csv, value: 'n' },
+  { header: w.rawMean.csv, value: (r) => (r.rawMean === null ? '' : r.rawMean.toFixed(4)) },
+  { header: w.smoothed.csv, value: (r) => r.smoothed.toFixed(4) },
+  { header: w.lowerBound.csv, value: (r) => r.lowerBound.toFixed(4) },
   {
-    header: 'newest_review_age_days',
+    header: w.newestAgeDays.csv,
     value: (r) => (r.newestAgeDays === null ? '' : Math.floor(r.newestAgeDays)),
   },
-  { header: 'movement_smoothed', value: 'smoothedMovement' },
-  { header: 'flags', value: flagList },
-  { header: 'stale_reason', value: 'staleReason' },
-  { header: 'cluster_reason', value: 'clusterReason' },
+  { header: w.smoothedMovement.csv, value: 'smoothedMovement' },
+  { header: w.flags.csv, value: flagList },
+  { header: w.staleReason.csv, value: 'staleReason' },
+  { header: w.clusterReason.csv, value: 'clusterReason' },
+  // The week's m and the strategy that set it, on every row so a filtered or pasted extract keeps them.
+  { header: w.priorWeight.csv, value: () => params.m.toFixed(4) },
+  { header: w.priorWeightApplied.csv, value: () => priorWeightApplied(params) },
 ];
 
 /** The whole filtered and sorted view (every page) as CSV, safe to open in a spreadsheet. */
@@ -331,20 +339,27 @@ export async function exportStandingsCsv(
   const { rows } = await selectStandings(snapshot, query, null);
   const filtered = query.flags || query.q || query.driftMin !== undefined || query.driftMax !== undefined;
   const fileName = `ballast-${category.slug}-${snapshot.summary.isoWeek}-standings${filtered ? '-filtered' : ''}.csv`;
-  return { fileName, csv: toCsv(rows, csvColumns, { bom: true }) };
+  return { fileName, csv: toCsv(rows, csvColumns(snapshot.params), { bom: true }) };
 }
 
 /** Naive against smoothed rank for every item of the week, as parallel arrays. */
 export async function getDriftChart(category: CategoryRef, week?: string): Promise<DriftChart> {
   const snapshot = await findWeek(category, week);
-  const rows = await db().query<{ sku: string; naive_rank: number; smoothed_rank: number; n: number }>(
-    `SELECT i.sku, sr.naive_rank, sr.smoothed_rank, sr.n FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
+  const rows = await db().query<{
+    sku: string;
+    title: string;
+    naive_rank: number;
+    smoothed_rank: number;
+    n: number;
+  }>(
+    `SELECT i.sku, i.title, sr.naive_rank, sr.smoothed_rank, sr.n FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
      WHERE sr.snapshot_id = :snapshotId ORDER BY sr.smoothed_rank, i.sku`,
     { replacements: { snapshotId: snapshot.id }, type: QueryTypes.SELECT },
   );
   return {
     isoWeek: snapshot.summary.isoWeek,
     skus: rows.map((r) => r.sku),
+    titles: rows.map((r) => r.title),
     naive: rows.map((r) => Number(r.naive_rank)),
     smoothed: rows.map((r) => Number(r.smoothed_rank)),
     n: rows.map((r) => Number(r.n)),
@@ -436,6 +451,14 @@ type TimelineSqlRow = {
   details: unknown;
 };
 
+const capitalised = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
+
+/** "Moved up 3 places smoothed", "Held its place naive": a zero move is not a move up. */
+function movedPhrase(movement: number, ranking: 'smoothed' | 'naive'): string {
+  if (movement === 0) return `held its place ${ranking}`;
+  return `moved ${movement > 0 ? 'up' : 'down'} ${countOf(Math.abs(movement), 'place')} ${ranking}`;
+}
+
 function flagsOf(row: TimelineSqlRow, details: SnapshotRowDetails, params: ResolvedParameters) {
   const n = Number(row.n);
   const movement = Math.max(
@@ -458,8 +481,8 @@ function flagsOf(row: TimelineSqlRow, details: SnapshotRowDetails, params: Resol
       flag: 'thin' as const,
       on: thin,
       reason: thin
-        ? `${n} reviews, below the thin-evidence threshold of ${params.thinEvidenceThreshold.toFixed(1)}.`
-        : `${n} reviews, at or above the thin-evidence threshold of ${params.thinEvidenceThreshold.toFixed(1)}.`,
+        ? `${countOf(n, 'review')}, below the thin-evidence threshold of ${params.thinEvidenceThreshold.toFixed(1)}.`
+        : `${countOf(n, 'review')}, at or above the thin-evidence threshold of ${params.thinEvidenceThreshold.toFixed(1)}.`,
     },
     {
       flag: 'cluster' as const,
@@ -474,7 +497,7 @@ function flagsOf(row: TimelineSqlRow, details: SnapshotRowDetails, params: Resol
       reason:
         row.smoothed_movement === null
           ? 'No earlier week to compare with.'
-          : `Moved ${Number(row.smoothed_movement) >= 0 ? 'up' : 'down'} ${Math.abs(Number(row.smoothed_movement))} places smoothed and ${Math.abs(Number(row.naive_movement))} naive since the week before (mover threshold ${params.moverThreshold}).`,
+          : `${capitalised(movedPhrase(Number(row.smoothed_movement), 'smoothed'))} and ${movedPhrase(Number(row.naive_movement ?? 0), 'naive')} since the week before (mover threshold ${countOf(params.moverThreshold, 'place')}).`,
     },
   ];
 }
@@ -500,7 +523,9 @@ export async function getItemDetail(
      WHERE s.category_id = :categoryId ORDER BY s.iso_week`,
     { replacements: { itemId: item.id, categoryId: category.id }, type: QueryTypes.SELECT },
   );
-  const timeline = rows.map((r) => ({
+  // The charts start at the item's first week in a snapshot, not at the category's first week.
+  const first = rows.findIndex((r) => r.n !== null);
+  const timeline = (first < 0 ? [] : rows.slice(first)).map((r) => ({
     isoWeek: r.iso_week,
     cutoff: new Date(r.cutoff).toISOString(),
     itemCount: Number(r.item_count),
@@ -557,6 +582,8 @@ export async function getItemDetail(
       flags: flagsOf(chosen, details, params),
       recurringPhrases: details.recurringPhrases,
       m: params.m,
+      priorWeightStrategy: params.priorWeightStrategy,
+      priorWeightApplied: params.priorWeightApplied,
       C: params.C,
       halfLifeDays: params.halfLifeDays,
       whatItTakesStars: params.whatItTakesStars,

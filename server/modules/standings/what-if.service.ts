@@ -8,6 +8,7 @@ import type {
   WhatIfEvidence,
   WhatIfQuery,
 } from '../../../shared/schemas/standings.schema';
+import { inUserWords } from '../../../shared/vocabulary';
 import { CalibrationNote as CalibrationNoteModel, Category } from '../../db/models';
 import { db } from '../../db/sequelize';
 import type { Actor } from '../../lib/actor';
@@ -99,7 +100,9 @@ export async function updateCategorySettings(
   try {
     resolveSettings(after);
   } catch (err) {
-    if (err instanceof ScoringInputError) throw new AppError('bad_request', err.message, 400);
+    if (err instanceof ScoringInputError) {
+      throw new AppError('bad_request', inUserWords(err.path, err.reason), 400);
+    }
     throw err;
   }
   row.settings = after;

@@ -1,19 +1,38 @@
 import { Scatter } from 'react-chartjs-2';
+import { countOf } from '../../../shared/plural';
+import { standingsColumns } from '../../../shared/vocabulary';
 import { chartColours } from './chart-setup';
 
-export type DriftPoint = { sku: string; naive: number; smoothed: number; highlight?: boolean };
+export type DriftPoint = {
+  sku: string;
+  naive: number;
+  smoothed: number;
+  highlight?: boolean;
+  title?: string;
+  n?: number;
+};
 
 /**
  * Naive rank across, smoothed rank up: items on the diagonal rank the same both ways; above it (towards 1)
  * smoothing lifts them, below it smoothing pulls them down. Rank 1 sits at the top and at the left.
  */
-export function DriftScatter({ points, title }: { points: DriftPoint[]; title: string }) {
+export function DriftScatter({
+  points,
+  title,
+  onOpen,
+}: {
+  points: DriftPoint[];
+  title: string;
+  /** Opens the item behind a dot; without it the dots only explain themselves. */
+  onOpen?: (sku: string) => void;
+}) {
   const max = Math.max(1, ...points.map((p) => Math.max(p.naive, p.smoothed)));
   const lifted = points.filter((p) => p.naive > p.smoothed && !p.highlight);
   const lowered = points.filter((p) => p.naive < p.smoothed && !p.highlight);
   const level = points.filter((p) => p.naive === p.smoothed && !p.highlight);
   const marked = points.filter((p) => p.highlight);
-  const toXY = (list: DriftPoint[]) => list.map((p) => ({ x: p.naive, y: p.smoothed, sku: p.sku }));
+  const toXY = (list: DriftPoint[]) =>
+    list.map((p) => ({ x: p.naive, y: p.smoothed, sku: p.sku, title: p.title, n: p.n }));
   const ticks = { precision: 0 };
   return (
     <div className="h-[26rem]" role="img" aria-label={title}>
@@ -23,8 +42,8 @@ export function DriftScatter({ points, title }: { points: DriftPoint[]; title: s
             {
               label: 'Same rank both ways',
               data: [
-                { x: 1, y: 1, sku: '' },
-                { x: max, y: max, sku: '' },
+                { x: 1, y: 1, sku: '', title: undefined, n: undefined },
+                { x: max, y: max, sku: '', title: undefined, n: undefined },
               ],
               showLine: true,
               borderColor: chartColours.ink300,
@@ -67,13 +86,31 @@ export function DriftScatter({ points, title }: { points: DriftPoint[]; title: s
         options={{
           responsive: true,
           maintainAspectRatio: false,
+          onClick: (_event, elements, chart) => {
+            const hit = elements[0];
+            if (!onOpen || !hit) return;
+            const raw = chart.data.datasets[hit.datasetIndex]?.data[hit.index] as
+              { sku?: string } | undefined;
+            if (raw?.sku) onOpen(raw.sku);
+          },
+          onHover: (event, elements) => {
+            const target = event.native?.target as HTMLElement | undefined;
+            if (target && onOpen) target.style.cursor = elements.length > 0 ? 'pointer' : 'default';
+          },
           plugins: {
             legend: { position: 'bottom', labels: { boxWidth: 10, boxHeight: 10 } },
             tooltip: {
               callbacks: {
                 label: (ctx) => {
-                  const raw = ctx.raw as { x: number; y: number; sku?: string };
-                  return raw.sku ? `${raw.sku}: naive #${raw.x}, smoothed #${raw.y}` : '';
+                  const raw = ctx.raw as { x: number; y: number; sku?: string; title?: string; n?: number };
+                  if (!raw.sku) return '';
+                  const lines = [
+                    raw.title ? `${raw.title} (${raw.sku})` : raw.sku,
+                    `${standingsColumns.naiveRank.label}${raw.x}, ${standingsColumns.smoothedRank.label}${raw.y}`,
+                  ];
+                  if (raw.n !== undefined) lines.push(countOf(raw.n, 'review'));
+                  if (onOpen) lines.push('Click to open the item');
+                  return lines;
                 },
               },
             },

@@ -38,7 +38,7 @@ describe('POST /api/admin/users', () => {
       .send({ email: 'short@example.test', name: 'Short', role: 'exec', password: 'short' })
       .expect(400);
     expect(res.body.error.code).toBe('validation_failed');
-    expect(res.body.error.message).toBe('password: Use at least 12 characters.');
+    expect(res.body.error.message).toBe('Password: Use at least 12 characters.');
   });
 
   it('answers 409 for an e-mail that already exists', async () => {

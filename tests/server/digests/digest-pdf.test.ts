@@ -27,6 +27,20 @@ async function categoryId(slug: string): Promise<number> {
 }
 
 describe('category digest PDF', () => {
+  it('says the true tie rule, the strategy that set m and the vocabulary words on the methods page', async () => {
+    const data = await loadCategoryDigestData(await categoryId('portable-power'), week, testDemoAsOf);
+    data.params = { ...data.params, priorWeightStrategy: 'credibility', priorWeightApplied: 'total' };
+    const { pdf } = await renderCategoryDigest(data, 'A4');
+    saveArtefacts('portable-power-methods', pdf, 99);
+    const all = (await pdfPages(pdf)).join('\n').replace(/\s+/g, ' ');
+    expect(all).toContain('tied scores share a rank');
+    expect(all).toContain('that order does not change the rank');
+    expect(all).not.toContain('ties are broken by');
+    expect(all).toContain('total review count, a fallback: credibility could not be estimated');
+    expect(all).toContain("Spearman's rho");
+    expect(all).not.toMatch(/Spearman rho|\bScore\b/);
+  });
+
   it('renders every section of the Portable Power digest with the figures of the snapshot', async () => {
     const data = await loadCategoryDigestData(await categoryId('portable-power'), week, testDemoAsOf);
     const { pdf, pages } = await renderCategoryDigest(data, 'A4');
@@ -67,7 +81,8 @@ describe('category digest PDF', () => {
     for (const item of data.items) expect(all).toContain(item.sku);
     const standingsPages = text.slice(1).filter((p) => p.includes('Full standings'));
     expect(standingsPages.length).toBeGreaterThan(1);
-    for (const p of standingsPages) expect(p).toMatch(/# SKU Item Reviews Raw Score Lower/);
+    for (const p of standingsPages)
+      expect(p).toMatch(/Smoothed # SKU Item Reviews Raw mean Smoothed Lower bound Naive #/);
     // reviewer identifiers of the demo look like rv-000123: none may appear
     expect(all).not.toMatch(/rv-\d{6}/);
   });

@@ -45,7 +45,9 @@ async function auditActions(targetId: number): Promise<string[]> {
 describe('GET /api/schedules/preview', () => {
   it('refuses a minute of 61 with a message naming the field and its range', async () => {
     const res = await ops.get('/api/schedules/preview').query({ cron: '61 * * * *', tz: 'UTC' }).expect(400);
-    expect(res.body.error.message).toBe('cron: The minute field allows 0–59; "61" is outside that range.');
+    expect(res.body.error.message).toBe(
+      'Cron expression: The minute field allows 0–59; "61" is outside that range.',
+    );
   });
 
   it('refuses an expression with the wrong number of fields and an unknown time zone', async () => {
@@ -56,7 +58,7 @@ describe('GET /api/schedules/preview', () => {
       .query({ cron: '0 6 * * 1', tz: 'Europe/Atlantis' })
       .expect(400);
     expect(zone.body.error.message).toBe(
-      'tz: Use an IANA time zone name such as Europe/London or America/New_York.',
+      'Time zone: Use an IANA time zone name such as Europe/London or America/New_York.',
     );
   });
 
@@ -136,7 +138,9 @@ describe('POST /api/schedules', () => {
       .set('x-csrf-token', ops.csrf)
       .send({ ...valid, name: 'Broken', cron: '61 * * * *' })
       .expect(400);
-    expect(res.body.error.message).toBe('cron: The minute field allows 0–59; "61" is outside that range.');
+    expect(res.body.error.message).toBe(
+      'Cron expression: The minute field allows 0–59; "61" is outside that range.',
+    );
     const list = await ops.get('/api/schedules').expect(200);
     expect(list.body.map((s: { name: string }) => s.name)).not.toContain('Broken');
   });
@@ -147,9 +151,8 @@ describe('POST /api/schedules', () => {
       .set('x-csrf-token', ops.csrf)
       .send({ ...valid, name: 'Mail', recipients: ['not-an-address'] })
       .expect(400);
-    expect(mail.body.error.message).toBe(
-      'recipients.0: Each extra recipient must be a valid e-mail address.',
-    );
+    // The message names the bad address and the field in the user's words, never a path like recipients.0.
+    expect(mail.body.error.message).toBe('Extra recipients: not-an-address is not a valid e-mail address.');
     const category = await ops
       .post('/api/schedules')
       .set('x-csrf-token', ops.csrf)

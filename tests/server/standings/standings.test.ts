@@ -250,6 +250,30 @@ describe('GET /api/categories/:slug/standings.csv', () => {
     expect(lines[1]).not.toMatch(/,"?=HYPERLINK/);
   });
 
+  it('shows m with the strategy actually applied when it fell back, on screen data and in every CSV row', async () => {
+    // A stored fallback: the category asked for credibility, the engine used the total review count.
+    await db().query(
+      `UPDATE snapshots s JOIN categories c ON c.id = s.category_id
+       SET s.params = JSON_SET(s.params, '$.priorWeightStrategy', 'credibility', '$.priorWeightApplied', 'total')
+       WHERE c.slug = :slug`,
+      { replacements: { slug: lamps } },
+    );
+    const standings = (await analyst.get(`/api/categories/${lamps}/standings`).expect(200)).body as Standings;
+    expect(standings).toMatchObject({ priorWeightStrategy: 'credibility', priorWeightApplied: 'total' });
+    const sku = standings.rows[0]!.sku;
+    const item = (await analyst.get(`/api/categories/${lamps}/items/${sku}`).expect(200)).body as ItemDetail;
+    expect(item.current).toMatchObject({ priorWeightStrategy: 'credibility', priorWeightApplied: 'total' });
+
+    const csv = (await analyst.get(`/api/categories/${lamps}/standings.csv`).expect(200)).text
+      .replace(/^\uFEFF/, '')
+      .trim()
+      .split('\r\n');
+    expect(csv[0]).toMatch(/,prior_weight_m,prior_weight_strategy_applied$/);
+    expect(csv[1]).toContain(
+      `${standings.m.toFixed(4)},"total review count, a fallback: credibility could not be estimated"`,
+    );
+  });
+
   it('exports every row of an unfiltered view', async () => {
     const res = await analyst.get(`/api/categories/${packs}/standings.csv`).expect(200);
     const stored = (await snapshotsOf(packs)).at(-1)!;
@@ -262,11 +286,15 @@ describe('GET /api/categories/:slug/items/:sku', () => {
     const res = await analyst.get(`/api/categories/${kettles}/items/${demoStory.thinLeader.sku}`).expect(200);
     const item = res.body as ItemDetail;
     const stored = await snapshotsOf(kettles);
-    expect(item.timeline.map((w) => w.isoWeek)).toEqual(stored.map((s) => s.iso_week));
-    // Its three reviews are 10, 25 and 40 days old at the end: the earliest weeks have no row for it.
+    // Its three reviews are 10, 25 and 40 days old at the end: the earliest weeks have no row for it, so its
+    // timeline starts at its first snapshotted week rather than at the category's first.
     const present = item.timeline.filter((w) => w.smoothedRank !== null);
     expect(present.length).toBeGreaterThan(0);
-    expect(present.length).toBeLessThan(item.timeline.length);
+    expect(item.timeline[0]!.smoothedRank).not.toBeNull();
+    expect(item.timeline.length).toBeLessThan(stored.length);
+    expect(item.timeline.map((w) => w.isoWeek)).toEqual(
+      stored.map((s) => s.iso_week).slice(stored.length - item.timeline.length),
+    );
     expect(item.timeline.at(-1)!.n).toBe(3);
 
     const strong = (
@@ -274,6 +302,10 @@ describe('GET /api/categories/:slug/items/:sku', () => {
     ).body as ItemDetail;
     expect(strong.timeline).toHaveLength((await snapshotsOf(packs)).length);
     expect(strong.timeline.every((w) => w.naiveRank !== null && w.smoothedRank === 1)).toBe(true);
+    // Rank 1 every week: a move of zero places is said as such, not as "Moved up 0 places".
+    const mover = strong.current!.flags.find((f) => f.flag === 'mover')!;
+    expect(mover.reason).toMatch(/^Held its place smoothed and /);
+    expect(mover.reason).not.toMatch(/ 0 places/);
     const thin = item.current!.flags.find((f) => f.flag === 'thin')!;
     expect(thin.on).toBe(true);
     expect(thin.reason).toMatch(/^3 reviews, below the thin-evidence threshold/);
@@ -402,6 +434,24 @@ describe('PUT /api/categories/:slug/settings', () => {
       .set('x-csrf-token', manager.csrf)
       .send({ z: 2 })
       .expect(403);
+  });
+
+  it('names a bad setting in the words of the form, not by its field path', async () => {
+    const res = await admin
+      .put(`/api/categories/${slug}/settings`)
+      .set('x-csrf-token', admin.csrf)
+      .send({ priorWeightValue: -3 })
+      .expect(400);
+    expect(res.body.error.message).toMatch(/^Prior weight m: /);
+    expect(res.body.error.message).not.toMatch(/priorWeightValue|settings\./);
+    // The engine's own check (fixed needs a value) speaks the same words.
+    const fixed = await admin
+      .put(`/api/categories/${slug}/settings`)
+      .set('x-csrf-token', admin.csrf)
+      .send({ priorWeightStrategy: 'fixed', priorWeightValue: null })
+      .expect(400);
+    expect(fixed.body.error.message).not.toMatch(/priorWeightValue|settings\./);
+    expect(fixed.body.error.message).toMatch(/^Prior weight m: /);
   });
 
   it('refuses settings the engine cannot use, and unknown fields', async () => {

@@ -21,6 +21,8 @@ import { StandingsFilters } from '../../../features/standings/components/standin
 import { StandingsTable } from '../../../features/standings/components/standings-table';
 import { viewFromParams } from '../../../features/standings/components/standings-view';
 import { WeekPicker } from '../../../features/standings/components/week-picker';
+import { countOf } from '../../../../shared/plural';
+import { priorWeightApplied, terms } from '../../../../shared/vocabulary';
 import { ApiError } from '../../../lib/api-client';
 import { fmt } from '../../../lib/format';
 import { queryClient } from '../../../lib/query-client';
@@ -76,6 +78,8 @@ export function Component() {
     if (!keepPage) next.delete('page');
     setParams(next);
   };
+
+  const selectTab = (id: Tab) => update({ view: id === 'standings' ? undefined : id }, true);
 
   if (category.isPending || weeks.isPending) return <Loading />;
   if (category.isError) return <ErrorPanel error={category.error} onRetry={() => void category.refetch()} />;
@@ -143,7 +147,29 @@ export function Component() {
               ))}
             </dl>
           ) : null}
-          <div role="tablist" aria-label="Category views" className="mb-4 flex gap-1 border-b border-ink-100">
+          <div
+            role="tablist"
+            aria-label="Category views"
+            className="mb-4 flex gap-1 overflow-x-auto border-b border-ink-100"
+            onKeyDown={(e) => {
+              // WAI-ARIA Authoring Practices, tabs pattern: arrows move and select, Home and End jump.
+              const at = tabs.findIndex((t) => t.id === tab);
+              const to =
+                e.key === 'ArrowRight'
+                  ? (at + 1) % tabs.length
+                  : e.key === 'ArrowLeft'
+                    ? (at - 1 + tabs.length) % tabs.length
+                    : e.key === 'Home'
+                      ? 0
+                      : e.key === 'End'
+                        ? tabs.length - 1
+                        : -1;
+              if (to < 0) return;
+              e.preventDefault();
+              selectTab(tabs[to]!.id);
+              document.getElementById(`tab-${tabs[to]!.id}`)?.focus();
+            }}
+          >
             {tabs.map((t) => (
               <button
                 key={t.id}
@@ -152,8 +178,9 @@ export function Component() {
                 id={`tab-${t.id}`}
                 aria-selected={tab === t.id}
                 aria-controls={`panel-${t.id}`}
-                onClick={() => update({ view: t.id === 'standings' ? undefined : t.id }, true)}
-                className={`-mb-px border-b-2 px-4 py-2 text-sm font-semibold ${
+                tabIndex={tab === t.id ? 0 : -1}
+                onClick={() => selectTab(t.id)}
+                className={`-mb-px shrink-0 whitespace-nowrap border-b-2 px-4 py-2 text-sm font-semibold ${
                   tab === t.id
                     ? 'border-brass-500 text-ink-900'
                     : 'border-transparent text-ink-500 hover:text-ink-800'
@@ -163,13 +190,14 @@ export function Component() {
               </button>
             ))}
           </div>
-          <div role="tabpanel" id={`panel-${tab}`} aria-labelledby={`tab-${tab}`}>
+          <div role="tabpanel" id={`panel-${tab}`} aria-labelledby={`tab-${tab}`} tabIndex={0}>
             <WidgetBoundary label={tab}>
               {tab === 'standings' ? (
                 <div className="space-y-3">
                   <StandingsFilters
                     key={`${view.q ?? ''}|${view.driftMin ?? ''}|${view.driftMax ?? ''}`}
                     view={view}
+                    example={standings.data?.rows[0]}
                     onChange={(patch) => update(patch)}
                   />
                   {standings.isPending ? <Loading label="Loading the standings…" /> : null}
@@ -185,10 +213,12 @@ export function Component() {
                     <div aria-busy={standings.isFetching}>
                       <p className="mb-2 text-xs text-ink-500">
                         Smoothed with m = <span className="font-mono">{standings.data.m.toFixed(1)}</span>{' '}
+                        <span data-testid="m-strategy">({priorWeightApplied(standings.data)})</span>{' '}
                         pseudo-reviews at C = <span className="font-mono">{standings.data.C.toFixed(3)}</span>
                         ; thin below{' '}
                         <span className="font-mono">{standings.data.thinThreshold.toFixed(1)}</span> reviews;
-                        stale after {standings.data.staleAfterDays} days. Drift = naive rank − smoothed rank.
+                        stale after {countOf(standings.data.staleAfterDays, 'day')}. {terms.drift}.{' '}
+                        {terms.ties}
                       </p>
                       <StandingsTable
                         slug={slug}

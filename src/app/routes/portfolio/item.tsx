@@ -1,11 +1,14 @@
 import type { ReactNode } from 'react';
 import { Link, useParams, useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
+import { countOf } from '../../../../shared/plural';
+import { homeLabel, priorWeightApplied, standingsColumns as label } from '../../../../shared/vocabulary';
 import { RouteError } from '../../../components/errors/route-error';
 import { WidgetBoundary } from '../../../components/errors/widget-boundary';
 import { Caution } from '../../../components/ui/caution';
 import { FlagBadge } from '../../../components/ui/flag-badge';
 import { PageHeader } from '../../../components/ui/page-header';
 import { EmptyState, ErrorPanel, Loading } from '../../../components/ui/status';
+import { useMe } from '../../../features/auth/api/get-me';
 import { itemQueryOptions, useItem } from '../../../features/item/api/get-item';
 import { EvidenceOverTime, RankTimeline, StarHistogram } from '../../../features/item/components/item-charts';
 import { WhatItTakes } from '../../../features/item/components/what-it-takes';
@@ -30,7 +33,10 @@ function Panel({
   className?: string;
 }) {
   return (
-    <section aria-labelledby={id} className={`rounded-lg border border-ink-100 bg-white p-4 ${className}`}>
+    <section
+      aria-labelledby={id}
+      className={`min-w-0 rounded-lg border border-ink-100 bg-white p-4 ${className}`}
+    >
       <h2 id={id} className="mb-2 font-bold text-ink-900">
         {title}
       </h2>
@@ -53,6 +59,7 @@ export function Component() {
   const [params] = useSearchParams();
   const week = params.get('week') ?? undefined;
   const item = useItem(slug, sku, week);
+  const { data: me } = useMe();
   if (item.isPending) return <Loading />;
   if (item.isError) return <ErrorPanel error={item.error} onRetry={() => void item.refetch()} />;
   const d = item.data;
@@ -63,7 +70,7 @@ export function Component() {
     <>
       <nav aria-label="Breadcrumb" className="mb-2 text-sm text-ink-500">
         <Link to="/" className="hover:underline">
-          Overview
+          {homeLabel(me?.role ?? '')}
         </Link>{' '}
         /{' '}
         <Link to={`/categories/${slug}${week ? `?week=${week}` : ''}`} className="hover:underline">
@@ -77,7 +84,13 @@ export function Component() {
           <>
             <span className="font-mono">{d.sku}</span> ·{' '}
             {d.isoWeek ? `week ${d.isoWeek}` : 'not in any snapshot'} · ranked in {weeksPresent} of{' '}
-            {d.timeline.length} snapshotted weeks
+            {countOf(d.timeline.length, 'snapshotted week')} since its first
+            {c ? (
+              <>
+                {' '}
+                · m = <span className="font-mono">{c.m.toFixed(1)}</span> ({priorWeightApplied(c)})
+              </>
+            ) : null}
           </>
         }
       />
@@ -85,13 +98,13 @@ export function Component() {
         <dl className="mb-5 grid grid-cols-2 gap-3 sm:grid-cols-4 lg:grid-cols-7">
           {(
             [
-              ['Smoothed rank', `${c.smoothedRank} of ${c.itemCount}`],
-              ['Naive rank', String(c.naiveRank)],
-              ['Drift', fmt.signed(c.drift)],
-              ['Reviews', String(c.n)],
-              ['Raw mean', fmt.num(c.rawMean, 2)],
-              ['Smoothed', fmt.num(c.smoothed, 3)],
-              ['Lower bound', fmt.num(c.lowerBound, 3)],
+              [label.smoothedRank.label, `${c.smoothedRank} of ${c.itemCount}`],
+              [label.naiveRank.label, String(c.naiveRank)],
+              [label.drift.label, fmt.signed(c.drift)],
+              [label.n.label, c.n.toLocaleString('en-GB')],
+              [label.rawMean.label, fmt.num(c.rawMean, 2)],
+              [label.smoothed.label, fmt.num(c.smoothed, 3)],
+              [label.lowerBound.label, fmt.num(c.lowerBound, 3)],
             ] as const
           ).map(([label, value]) => (
             <div key={label} className="rounded-lg border border-ink-100 bg-white px-3 py-2">
@@ -107,36 +120,42 @@ export function Component() {
           <RankTimeline timeline={d.timeline} sku={d.sku} />
           <details className="mt-2 text-sm">
             <summary className="cursor-pointer font-semibold text-ink-700">Ranks as a table</summary>
-            <div className="mt-2 max-h-64 overflow-y-auto">
-              <table className="w-full text-sm" data-testid="timeline-table">
+            <div className="mt-2 max-h-64 overflow-auto">
+              <table
+                className="w-full text-sm [&_td]:px-2 [&_th]:px-2 [&_th]:whitespace-nowrap"
+                data-testid="timeline-table"
+              >
                 <caption className="sr-only">Naive and smoothed rank per week</caption>
                 <thead className="text-left text-xs uppercase text-ink-500">
                   <tr>
                     <th scope="col">Week</th>
                     <th scope="col" className="text-right">
-                      Smoothed #
+                      {label.smoothedRank.label}
                     </th>
                     <th scope="col" className="text-right">
-                      Naive #
+                      {label.naiveRank.label}
                     </th>
                     <th scope="col" className="text-right">
-                      Reviews
+                      {label.n.label}
                     </th>
                     <th scope="col" className="text-right">
-                      Smoothed
+                      {label.smoothed.label}
                     </th>
                   </tr>
                 </thead>
                 <tbody>
-                  {d.timeline.map((w) => (
-                    <tr key={w.isoWeek} className="border-t border-ink-50 font-mono">
-                      <td>{w.isoWeek}</td>
-                      <td className="text-right">{w.smoothedRank ?? '—'}</td>
-                      <td className="text-right">{w.naiveRank ?? '—'}</td>
-                      <td className="text-right">{w.n ?? '—'}</td>
-                      <td className="text-right">{fmt.num(w.smoothed, 3)}</td>
-                    </tr>
-                  ))}
+                  {d.timeline
+                    .filter((w) => w.smoothedRank !== null)
+                    .reverse()
+                    .map((w) => (
+                      <tr key={w.isoWeek} className="border-t border-ink-50 font-mono">
+                        <td>{w.isoWeek}</td>
+                        <td className="text-right">{w.smoothedRank ?? '—'}</td>
+                        <td className="text-right">{w.naiveRank ?? '—'}</td>
+                        <td className="text-right">{w.n ?? '—'}</td>
+                        <td className="text-right">{fmt.num(w.smoothed, 3)}</td>
+                      </tr>
+                    ))}
                 </tbody>
               </table>
             </div>
@@ -181,13 +200,13 @@ export function Component() {
                 <dt className="text-ink-500">Newest review</dt>
                 <dd className="font-mono">
                   {fmt.date(c.newestAt)}{' '}
-                  <span className="text-ink-500">({fmt.age(c.newestAgeDays)} before the cut-off)</span>
+                  <span className="text-ink-500">({fmt.ageBeforeCutoff(c.newestAgeDays)})</span>
                 </dd>
                 <dt className="text-ink-500">Median review age</dt>
                 <dd className="font-mono">{fmt.age(c.medianAgeDays)}</dd>
                 <dt className="text-ink-500">Reviews in the last 90 days</dt>
                 <dd className="font-mono">{fmt.pct(c.recentShare)}</dd>
-                <dt className="text-ink-500">Decayed mean (half-life {c.halfLifeDays} d)</dt>
+                <dt className="text-ink-500">Decayed mean (half-life {countOf(c.halfLifeDays, 'day')})</dt>
                 <dd className="font-mono">
                   {fmt.num(c.decayedMean, 2)}{' '}
                   <span className="text-ink-500">from ≈{fmt.num(c.effectiveCount, 1)} effective reviews</span>

@@ -1,5 +1,7 @@
 import { Bar, Line } from 'react-chartjs-2';
+import { countOf } from '../../../../shared/plural';
 import type { ItemDetail } from '../../../../shared/schemas/standings.schema';
+import { standingsColumns } from '../../../../shared/vocabulary';
 import { chartColours } from '../../../components/charts/chart-setup';
 
 type Timeline = ItemDetail['timeline'];
@@ -83,7 +85,7 @@ export function EvidenceOverTime({ timeline }: { timeline: Timeline }) {
           datasets: [
             {
               type: 'bar' as const,
-              label: 'Reviews',
+              label: standingsColumns.n.label,
               data: timeline.map((w) => w.n),
               backgroundColor: `${chartColours.ink300}80`,
               yAxisID: 'count',
@@ -91,7 +93,7 @@ export function EvidenceOverTime({ timeline }: { timeline: Timeline }) {
             },
             {
               type: 'line' as const,
-              label: 'Raw mean',
+              label: standingsColumns.rawMean.label,
               data: timeline.map((w) => w.rawMean),
               borderColor: chartColours.brass,
               backgroundColor: chartColours.brass,
@@ -102,7 +104,7 @@ export function EvidenceOverTime({ timeline }: { timeline: Timeline }) {
             },
             {
               type: 'line' as const,
-              label: 'Smoothed',
+              label: standingsColumns.smoothed.label,
               data: timeline.map((w) => w.smoothed),
               borderColor: chartColours.ink,
               backgroundColor: chartColours.ink,
@@ -112,7 +114,7 @@ export function EvidenceOverTime({ timeline }: { timeline: Timeline }) {
             },
             {
               type: 'line' as const,
-              label: 'Lower bound',
+              label: standingsColumns.lowerBound.label,
               data: timeline.map((w) => w.lowerBound),
               borderColor: chartColours.kelp,
               backgroundColor: chartColours.kelp,
@@ -137,7 +139,14 @@ export function EvidenceOverTime({ timeline }: { timeline: Timeline }) {
               grid: { drawOnChartArea: false },
               ticks: { precision: 0 },
             },
-            stars: { type: 'linear', position: 'left', title: { display: true, text: 'Stars' } },
+            stars: {
+              type: 'linear',
+              position: 'left',
+              min: 1,
+              max: 5,
+              title: { display: true, text: 'Stars' },
+              ticks: { stepSize: 1 },
+            },
             x: { ticks: { autoSkip: true, maxRotation: 0 } },
           },
         }}
@@ -155,7 +164,7 @@ export function StarHistogram({ histogram }: { histogram: number[] }) {
           labels: ['5★', '4★', '3★', '2★', '1★'],
           datasets: [
             {
-              label: 'Reviews',
+              label: standingsColumns.n.label,
               data: [...histogram].reverse(),
               backgroundColor: [
                 chartColours.kelp,
@@ -178,7 +187,7 @@ export function StarHistogram({ histogram }: { histogram: number[] }) {
               callbacks: {
                 label: (ctx) => {
                   const x = ctx.parsed.x ?? 0;
-                  return `${x} reviews (${total ? Math.round((100 * x) / total) : 0}%)`;
+                  return `${countOf(x, 'review')} (${total ? Math.round((100 * x) / total) : 0}%)`;
                 },
               },
             },

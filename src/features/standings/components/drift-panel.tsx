@@ -1,13 +1,21 @@
+import { useNavigate } from 'react-router-dom';
 import { DriftScatter } from '../../../components/charts/drift-scatter';
 import { ErrorPanel, Loading } from '../../../components/ui/status';
 import { useDrift } from '../api/get-drift';
 
 export function DriftPanel({ slug, week }: { slug: string; week: string | undefined }) {
   const drift = useDrift(slug, week);
+  const navigate = useNavigate();
   if (drift.isPending) return <Loading label="Loading the drift chart…" />;
   if (drift.isError) return <ErrorPanel error={drift.error} onRetry={() => void drift.refetch()} />;
   const d = drift.data;
-  const points = d.skus.map((sku, i) => ({ sku, naive: d.naive[i]!, smoothed: d.smoothed[i]! }));
+  const points = d.skus.map((sku, i) => ({
+    sku,
+    title: d.titles[i],
+    n: d.n[i],
+    naive: d.naive[i]!,
+    smoothed: d.smoothed[i]!,
+  }));
   const lifted = points.filter((p) => p.naive > p.smoothed).length;
   const lowered = points.filter((p) => p.naive < p.smoothed).length;
   return (
@@ -21,6 +29,9 @@ export function DriftPanel({ slug, week }: { slug: string; week: string | undefi
       </p>
       <DriftScatter
         points={points}
+        onOpen={(sku) =>
+          void navigate(`/categories/${slug}/items/${encodeURIComponent(sku)}${week ? `?week=${week}` : ''}`)
+        }
         title={`Scatter of ${points.length} items: naive rank against smoothed rank; ${lifted} lifted, ${lowered} pulled down.`}
       />
     </section>

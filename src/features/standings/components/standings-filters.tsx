@@ -5,11 +5,22 @@ import type { StandingsView } from '../api/get-standings';
 const flagCodes: FlagCode[] = ['stale', 'thin', 'cluster', 'mover'];
 
 /** Flags apply at once; text and drift range apply on submit (Enter) so typing does not flood the server. */
+/** "e.g. TP-20 or pack", from an item of the category on screen rather than from another category. */
+function searchExample({ sku, title }: { sku: string; title: string }): string {
+  const words = title.split(/\s+/).filter((w) => /^[A-Za-z]{3,}$/.test(w));
+  const word = (words[1] ?? words[0] ?? '').toLowerCase();
+  const prefix = sku.slice(0, Math.min(sku.length, 5));
+  return word ? `e.g. ${prefix} or ${word}` : `e.g. ${prefix}`;
+}
+
 export function StandingsFilters({
   view,
   onChange,
+  example,
 }: {
   view: StandingsView;
+  /** An item of the category on screen, for the search placeholder. */
+  example?: { sku: string; title: string };
   onChange: (patch: Partial<Record<'flags' | 'q' | 'driftMin' | 'driftMax', string | undefined>>) => void;
 }) {
   const active = new Set(view.flags ? view.flags.split(',') : []);
@@ -64,7 +75,7 @@ export function StandingsFilters({
           className={`${input} mt-1 w-52 font-normal normal-case tracking-normal`}
           value={q}
           onChange={(e) => setQ(e.target.value)}
-          placeholder="e.g. KB-10 or kettle"
+          placeholder={example ? searchExample(example) : 'a SKU or a word of a title'}
         />
       </label>
       <fieldset className="flex items-end gap-2">

@@ -7,6 +7,8 @@ import {
 } from '@tanstack/react-table';
 import { Link } from 'react-router-dom';
 import type { StandingsRow, StandingsSort } from '../../../../shared/schemas/standings.schema';
+import { countOf } from '../../../../shared/plural';
+import { standingsColumns as label } from '../../../../shared/vocabulary';
 import { FlagBadge } from '../../../components/ui/flag-badge';
 import { fmt } from '../../../lib/format';
 
@@ -25,25 +27,25 @@ function Drift({ value }: { value: number }) {
   );
 }
 
-function buildColumns(slug: string, week: string | undefined) {
+export function buildColumns(slug: string, week: string | undefined) {
   const num = 'text-right font-mono tabular-nums';
   return [
     col.accessor('smoothedRank', {
       id: 'smoothedRank',
-      header: 'Smoothed #',
+      header: label.smoothedRank.label,
       meta: { className: num },
       cell: (c) => <span className="font-semibold text-ink-900">{c.getValue()}</span>,
     }),
-    col.accessor('naiveRank', { id: 'naiveRank', header: 'Naive #', meta: { className: num } }),
+    col.accessor('naiveRank', { id: 'naiveRank', header: label.naiveRank.label, meta: { className: num } }),
     col.accessor('drift', {
       id: 'drift',
-      header: 'Drift',
+      header: label.drift.label,
       meta: { className: num },
       cell: (c) => <Drift value={c.getValue()} />,
     }),
     col.accessor('title', {
       id: 'title',
-      header: 'Item',
+      header: label.title.label,
       meta: { className: 'min-w-[14rem]' },
       cell: (c) => (
         <Link
@@ -55,43 +57,43 @@ function buildColumns(slug: string, week: string | undefined) {
         </Link>
       ),
     }),
-    col.accessor('n', { id: 'n', header: 'Reviews', meta: { className: num } }),
+    col.accessor('n', { id: 'n', header: label.n.label, meta: { className: num } }),
     col.accessor('rawMean', {
       id: 'rawMean',
-      header: 'Raw mean',
+      header: label.rawMean.label,
       meta: { className: num },
       cell: (c) => fmt.num(c.getValue(), 2),
     }),
     col.accessor('smoothed', {
       id: 'smoothed',
-      header: 'Smoothed',
+      header: label.smoothed.label,
       meta: { className: num },
       cell: (c) => <span className="font-semibold">{fmt.num(c.getValue(), 3)}</span>,
     }),
     col.accessor('lowerBound', {
       id: 'lowerBound',
-      header: 'Lower bound',
+      header: label.lowerBound.label,
       meta: { className: num },
       cell: (c) => fmt.num(c.getValue(), 3),
     }),
     col.accessor('newestAgeDays', {
       id: 'newestAgeDays',
-      header: 'Newest review',
+      header: label.newestAgeDays.label,
       meta: { className: 'text-right whitespace-nowrap' },
       cell: (c) => fmt.age(c.getValue()),
     }),
     col.display({
       id: 'flags',
-      header: 'Flags',
+      header: label.flags.label,
       cell: ({ row: { original: r } }) => (
         <span className="flex flex-wrap gap-1">
           {r.stale ? <FlagBadge flag="stale" reason={r.staleReason} /> : null}
-          {r.thin ? <FlagBadge flag="thin" reason={`${r.n} reviews`} /> : null}
+          {r.thin ? <FlagBadge flag="thin" reason={countOf(r.n, 'review')} /> : null}
           {r.negativeCluster ? <FlagBadge flag="cluster" reason={r.clusterReason} /> : null}
           {r.mover ? (
             <FlagBadge
               flag="mover"
-              reason={`moved ${fmt.signed(r.smoothedMovement)} places (smoothed) since last week`}
+              reason={`moved ${fmt.signed(r.smoothedMovement)} ${Math.abs(r.smoothedMovement ?? 0) === 1 ? 'place' : 'places'} (smoothed) since last week`}
             />
           ) : null}
         </span>
@@ -145,7 +147,10 @@ export function StandingsTable({
   });
 
   return (
-    <div className="overflow-x-auto rounded-lg border border-ink-100 bg-white">
+    <div
+      className="max-w-full overflow-x-auto rounded-lg border border-ink-100 bg-white"
+      data-testid="standings-frame"
+    >
       <table className="w-full min-w-[60rem] text-sm">
         <caption className="sr-only">{caption}</caption>
         <thead className="sticky top-0 bg-ink-50 text-left text-xs uppercase text-ink-700">

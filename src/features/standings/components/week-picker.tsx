@@ -21,7 +21,7 @@ export function WeekPicker({
       </label>
       <select
         id={id}
-        className="rounded-md border border-ink-200 bg-white px-2 py-1.5 font-mono text-sm"
+        className="min-w-0 max-w-full rounded-md border border-ink-200 bg-white px-2 py-1.5 font-mono text-sm"
         value={value && value !== latest?.isoWeek ? value : ''}
         onChange={(e) => onChange(e.target.value || undefined)}
       >

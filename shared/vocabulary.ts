@@ -1,0 +1,107 @@
+import type { PriorWeightStrategy } from './scoring/settings';
+
+/**
+ * The words Ballast uses for its concepts, in one place: screens, PDF, mail and CSV headers all read them,
+ * so the same column is never "Smoothed" on one page and "Score" on another.
+ */
+export const standingsColumns = {
+  smoothedRank: { label: 'Smoothed #', csv: 'smoothed_rank' },
+  naiveRank: { label: 'Naive #', csv: 'naive_rank' },
+  drift: { label: 'Drift', csv: 'drift' },
+  sku: { label: 'SKU', csv: 'sku' },
+  title: { label: 'Item', csv: 'title' },
+  n: { label: 'Reviews', csv: 'reviews' },
+  rawMean: { label: 'Raw mean', csv: 'raw_mean' },
+  smoothed: { label: 'Smoothed', csv: 'smoothed' },
+  lowerBound: { label: 'Lower bound', csv: 'lower_bound' },
+  newestAgeDays: { label: 'Newest review', csv: 'newest_review_age_days' },
+  smoothedMovement: { label: 'Smoothed move', csv: 'movement_smoothed' },
+  naiveMovement: { label: 'Naive move', csv: 'movement_naive' },
+  flags: { label: 'Flags', csv: 'flags' },
+  staleReason: { label: 'Why stale', csv: 'stale_reason' },
+  clusterReason: { label: 'Why a cluster', csv: 'cluster_reason' },
+  priorWeight: { label: 'm', csv: 'prior_weight_m' },
+  priorWeightApplied: { label: 'Strategy applied', csv: 'prior_weight_strategy_applied' },
+} as const;
+export type StandingsColumn = keyof typeof standingsColumns;
+
+/** Every on-screen and printed label of a standings column, for the test that keeps labels inside this module. */
+export const standingsLabels: ReadonlySet<string> = new Set(
+  Object.values(standingsColumns).map((c) => c.label),
+);
+
+export const terms = {
+  spearman: "Spearman's rho",
+  kendall: "Kendall's tau-b",
+  naiveRanking: 'naive rank',
+  smoothedRanking: 'smoothed rank',
+  drift: 'Drift = naive rank − smoothed rank',
+  ties: 'Ranks use standard competition ranking: tied scores share a rank and the next rank is skipped (1, 2, 2, 4). Within a tie the list shows the item with more reviews first, then by SKU; that order does not change the rank.',
+} as const;
+
+/** What a person calls a field of a form or setting; an error message names this, never a field path. */
+export const fieldLabels: Record<string, string> = {
+  priorWeightStrategy: 'Prior weight strategy',
+  priorWeightValue: 'Prior weight m',
+  priorMeanStrategy: 'Prior mean strategy',
+  priorMeanValue: 'Prior mean C',
+  z: 'Lower bound z',
+  helpfulZ: 'Helpfulness z',
+  halfLifeDays: 'Recency half-life (days)',
+  recentWindowDays: 'Recent window (days)',
+  staleAfterDays: 'Stale after (days)',
+  thinEvidenceThreshold: 'Thin evidence below (reviews)',
+  clusterWindowDays: 'Negative cluster window (days)',
+  clusterBaselineDays: 'Negative cluster baseline (days)',
+  clusterPValue: 'Negative cluster p-value',
+  clusterMinCount: 'Negative cluster minimum count',
+  clusterPhrases: 'Watched phrases',
+  whatItTakesStars: 'What it would take (stars)',
+  moverThreshold: 'Mover threshold (places)',
+  topOverlapDepth: 'Top overlap depth',
+  rboP: 'Rank-biased overlap p',
+  recipients: 'Extra recipients',
+  categoryIds: 'Categories',
+  cron: 'Cron expression',
+  tz: 'Time zone',
+  timeZone: 'Time zone',
+};
+
+/** The label of the innermost named field of a path like settings.priorWeightValue or recipients.0. */
+export function fieldLabel(path: readonly PropertyKey[]): string | null {
+  const name = [...path].reverse().find((p): p is string => typeof p === 'string');
+  if (!name) return null;
+  const known = fieldLabels[name];
+  if (known) return known;
+  const words = name.replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase();
+  return words.charAt(0).toUpperCase() + words.slice(1);
+}
+
+/** "Prior weight m: must be given" for an engine error at settings.priorWeightValue. */
+export function inUserWords(path: string, reason: string): string {
+  const label = path ? fieldLabel(path.split('.')) : null;
+  return label ? `${label}: ${reason}` : reason;
+}
+
+/** The name of the start page: a manager sees only their own categories there. */
+export const homeLabel = (role: string): string => (role === 'manager' ? 'My categories' : 'Overview');
+
+export const priorWeightStrategyNames: Record<PriorWeightStrategy, string> = {
+  mean: 'mean review count',
+  median: 'median review count',
+  max: 'largest review count',
+  min: 'smallest review count',
+  total: 'total review count',
+  fixed: 'fixed value',
+  credibility: 'credibility',
+};
+
+/** The strategy that set m, saying so when it is a fallback from the one the category asks for. */
+export function priorWeightApplied(p: {
+  priorWeightStrategy: PriorWeightStrategy;
+  priorWeightApplied: PriorWeightStrategy;
+}): string {
+  const applied = priorWeightStrategyNames[p.priorWeightApplied];
+  if (p.priorWeightApplied === p.priorWeightStrategy) return applied;
+  return `${applied}, a fallback: ${priorWeightStrategyNames[p.priorWeightStrategy]} could not be estimated`;
+}
