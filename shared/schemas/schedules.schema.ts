@@ -117,7 +117,7 @@ const timeZoneField = z
   .max(64)
   .refine(isTimeZone, 'Use an IANA time zone name such as Europe/London or America/New_York.');
 
-export const scheduleInputSchema = z.object({
+const scheduleFields = z.object({
   name: z.string().trim().min(1, 'Give the schedule a name.').max(120, 'Use at most 120 characters.'),
   cron: cronField,
   timeZone: timeZoneField,
@@ -136,15 +136,21 @@ export const scheduleInputSchema = z.object({
         .email({ error: (iss) => `${String(iss.input)} is not a valid e-mail address.` })
         .max(254),
     )
-    .max(50, 'Use at most 50 extra recipients.')
-    .default([]),
+    .max(50, 'Use at most 50 extra recipients.'),
   produce: z.enum(produceKinds),
-  enabled: z.boolean().default(true),
+  enabled: z.boolean(),
+});
+
+export const scheduleInputSchema = scheduleFields.extend({
+  recipients: scheduleFields.shape.recipients.default([]),
+  enabled: scheduleFields.shape.enabled.default(true),
 });
 export type ScheduleInput = z.input<typeof scheduleInputSchema>;
 export type ScheduleValues = z.output<typeof scheduleInputSchema>;
 
-export const scheduleUpdateSchema = scheduleInputSchema
+// Built from the fields without their defaults: zod applies a default even inside .partial(), so a pause
+// ({ enabled: false }) would otherwise also send recipients: [] and an edit without `enabled` would resume.
+export const scheduleUpdateSchema = scheduleFields
   .partial()
   .refine((v) => Object.keys(v).length > 0, 'Send at least one field to change.');
 export type ScheduleUpdate = z.output<typeof scheduleUpdateSchema>;

@@ -2,7 +2,7 @@ import { createBrowserRouter, redirect, type LoaderFunctionArgs } from 'react-ro
 import { RouteError } from '../components/errors/route-error';
 import { AppShell } from '../components/layouts/app-shell';
 import { meQueryOptions } from '../features/auth/api/get-me';
-import { ApiError } from '../lib/api-client';
+import { ApiError, signInPath } from '../lib/api-client';
 import { queryClient } from '../lib/query-client';
 
 async function requireSignIn({ request }: LoaderFunctionArgs) {
@@ -11,7 +11,7 @@ async function requireSignIn({ request }: LoaderFunctionArgs) {
   } catch (error) {
     if (error instanceof ApiError && error.status === 401) {
       const url = new URL(request.url);
-      throw redirect(`/sign-in?next=${encodeURIComponent(url.pathname + url.search)}`);
+      throw redirect(signInPath(url.pathname + url.search));
     }
     throw error;
   }

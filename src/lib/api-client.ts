@@ -34,10 +34,36 @@ function toError(status: number, body: unknown): ApiError {
   return new ApiError(status, 'unknown', `The request failed (${status}).`);
 }
 
+// Whether this browser held a signed-in session, so the sign-in page says "Your session has ended" only when
+// one did end, never on a first visit. Kept in localStorage so that every tab of the browser agrees.
+const sessionMark = 'ballast.hadSession';
+
+function storage(): Storage | undefined {
+  try {
+    return window.localStorage;
+  } catch {
+    return undefined;
+  }
+}
+
+export function rememberSession(signedIn: boolean): void {
+  if (signedIn) storage()?.setItem(sessionMark, '1');
+  else storage()?.removeItem(sessionMark);
+}
+
+/** Whether a session was held here and is now gone; the sign-in page forgets it once it has said so. */
+export function sessionEnded(): boolean {
+  return storage()?.getItem(sessionMark) === '1';
+}
+
+/** The sign-in address that brings the reader back to `next`, with the notice only when a session ended. */
+export function signInPath(next: string): string {
+  return `/sign-in?next=${encodeURIComponent(next)}${sessionEnded() ? '&ended=1' : ''}`;
+}
+
 function goToSignIn(): void {
   if (window.location.pathname === '/sign-in') return;
-  const next = window.location.pathname + window.location.search;
-  window.location.assign(`/sign-in?next=${encodeURIComponent(next)}&ended=1`);
+  window.location.assign(signInPath(window.location.pathname + window.location.search));
 }
 
 type Options = {

@@ -84,6 +84,31 @@ describe('signing in through the browser', () => {
     await page.close();
   });
 
+  it('says "Your session has ended" only when a session did end, never on a first visit', async () => {
+    const analyst = demoAccounts.find((a) => a.role === 'analyst')!;
+    const ended = 'Your session has ended. Please sign in again.';
+    for (const width of [1440, 390]) {
+      const context = await browser.newContext({ viewport: { width, height: 900 } });
+      const page = await context.newPage();
+      await page.goto(`${server.url}/categories/desk-lighting`);
+      await page.getByRole('heading', { name: 'Sign in to Ballast' }).waitFor();
+      await page.waitForLoadState('networkidle');
+      expect(new URL(page.url()).searchParams.get('ended')).toBeNull();
+      expect(await page.getByText(ended).count()).toBe(0);
+      await page.screenshot({ path: path.join(screenshotDir, `sign-in-first-visit-${width}.png`) });
+
+      await page.getByLabel('E-mail').fill(analyst.email);
+      await page.getByLabel('Password').fill(analyst.password);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      await page.getByRole('heading', { name: 'Desk Lighting' }).waitFor();
+      await context.clearCookies();
+      await page.goto(`${server.url}/categories/desk-lighting`);
+      await page.getByText(ended).waitFor();
+      await page.screenshot({ path: path.join(screenshotDir, `sign-in-session-ended-${width}.png`) });
+      await context.close();
+    }
+  });
+
   it('shows a 404 page for an unknown address, and a clear refusal for a category that is not yours', async () => {
     const manager = demoAccounts.find((a) => a.role === 'manager')!;
     const page = await browser.newPage();

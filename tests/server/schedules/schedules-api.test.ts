@@ -202,6 +202,52 @@ describe('PATCH and DELETE /api/schedules/:id', () => {
     expect(details.timeZone).toEqual({ from: 'Europe/London', to: 'America/New_York' });
   });
 
+  it('keeps every field it was not asked to change through pause, resume and a one-field edit', async () => {
+    const created = await ops
+      .post('/api/schedules')
+      .set('x-csrf-token', ops.csrf)
+      .send({
+        ...valid,
+        name: 'Every field kept',
+        cron: '30 5 * * 2',
+        timeZone: 'Pacific/Auckland',
+        categoryIds: [kettlesId, lightingId],
+        recipients: ['first.reader@example.com', 'second.reader@example.com'],
+        produce: 'snapshot_digest',
+      })
+      .expect(201);
+    const id = created.body.id as number;
+    const kept = (body: Record<string, unknown>) => ({
+      name: body.name,
+      cron: body.cron,
+      timeZone: body.timeZone,
+      categoryIds: body.categoryIds,
+      recipients: body.recipients,
+      produce: body.produce,
+    });
+    const original = kept(created.body);
+    const patch = (send: Record<string, unknown>) =>
+      ops.patch(`/api/schedules/${id}`).set('x-csrf-token', ops.csrf).send(send).expect(200);
+
+    const paused = await patch({ enabled: false });
+    expect(kept(paused.body)).toEqual(original);
+    expect(paused.body.enabled).toBe(false);
+    const renamedWhilePaused = await patch({ name: 'Every field kept, renamed' });
+    expect(renamedWhilePaused.body.enabled).toBe(false);
+    expect(kept(renamedWhilePaused.body)).toEqual({ ...original, name: 'Every field kept, renamed' });
+    const resumed = await patch({ enabled: true });
+    expect(kept(resumed.body)).toEqual({ ...original, name: 'Every field kept, renamed' });
+    const read = await ops.get(`/api/schedules/${id}`).expect(200);
+    expect(kept(read.body)).toEqual({ ...original, name: 'Every field kept, renamed' });
+    expect(read.body.enabled).toBe(true);
+
+    const updates = await AuditEvent.findAll({ where: { action: 'schedule.updated', targetId: String(id) } });
+    const changed = updates.flatMap((u) =>
+      Object.keys((typeof u.details === 'string' ? JSON.parse(u.details) : u.details) as object),
+    );
+    expect(changed).toEqual(['name']);
+  });
+
   it('keeps the job history of a deleted schedule', async () => {
     const created = await ops
       .post('/api/schedules')

@@ -1,10 +1,12 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { Me } from '../../../../shared/auth';
-import { api } from '../../../lib/api-client';
+import { api, rememberSession } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
 
-export function getMe(): Promise<Me> {
-  return api<Me>('/api/me', { redirectOn401: false });
+export async function getMe(): Promise<Me> {
+  const me = await api<Me>('/api/me', { redirectOn401: false });
+  rememberSession(true);
+  return me;
 }
 
 export const meQueryOptions = () =>

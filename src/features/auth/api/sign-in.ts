@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { Me, SignInInput } from '../../../../shared/auth';
-import { api, rememberCsrfToken } from '../../../lib/api-client';
+import { api, rememberCsrfToken, rememberSession } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
 
 export async function signIn(input: SignInInput): Promise<Me> {
@@ -10,6 +10,7 @@ export async function signIn(input: SignInInput): Promise<Me> {
     redirectOn401: false,
   });
   rememberCsrfToken(csrfToken);
+  rememberSession(true);
   return me;
 }
 

@@ -1,5 +1,5 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import { api, rememberCsrfToken } from '../../../lib/api-client';
+import { api, rememberCsrfToken, rememberSession } from '../../../lib/api-client';
 
 export function signOut(): Promise<void> {
   return api<void>('/api/auth/sign-out', { method: 'POST' });
@@ -11,6 +11,7 @@ export function useSignOut() {
     mutationFn: signOut,
     onSettled: () => {
       rememberCsrfToken(undefined);
+      rememberSession(false);
       queryClient.clear();
     },
   });

@@ -1,5 +1,6 @@
 import { Link } from 'react-router-dom';
 import type { CategorySummary } from '../../../../shared/auth';
+import { countOf } from '../../../../shared/plural';
 import { produceLabels, type ScheduleRecord } from '../../../../shared/schemas/schedules.schema';
 import { Button } from '../../../components/ui/button';
 import { errorMessage } from '../../../components/ui/status';
@@ -32,7 +33,7 @@ export function SchedulesTable({
     <>
       {runNow.data ? (
         <p role="status" className="mb-3 rounded-md bg-kelp-500/10 px-3 py-2 text-sm text-ink-900">
-          Queued {runNow.data.runs.length} run{runNow.data.runs.length === 1 ? '' : 's'}.{' '}
+          Queued {countOf(runNow.data.runs.length, 'run')}.{' '}
           <Link to="/jobs" className="font-semibold underline">
             Follow them in job history
           </Link>
