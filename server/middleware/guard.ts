@@ -1,7 +1,18 @@
 import type { RequestHandler } from 'express';
 import { AppError } from '../lib/app-error';
 import type { Access } from '../lib/route';
-import { findCategoryBySlug } from '../modules/categories/categories.service';
+import type { Actor } from '../lib/actor';
+import { findCategoryBySlug, type CategoryRef } from '../modules/categories/categories.service';
+
+/** Which categories an actor may read: the one rule, for route parameters and request bodies alike. */
+export async function categoryForActor(actor: Actor, slug: unknown): Promise<CategoryRef> {
+  const category = typeof slug === 'string' ? await findCategoryBySlug(slug) : null;
+  if (!category) throw AppError.notFound('The category');
+  if (actor.categoryIds && !actor.categoryIds.includes(category.id)) {
+    throw AppError.forbidden('This category is not one of yours.');
+  }
+  return category;
+}
 
 /** The one check every API route passes through: who is calling, with which role, on which category. */
 export function guard(access: Access): RequestHandler {
@@ -18,13 +29,7 @@ export function guard(access: Access): RequestHandler {
       throw AppError.forbidden('Your role does not allow this.');
     }
     if (access.category) {
-      const slug = req.params[access.category];
-      const category = typeof slug === 'string' ? await findCategoryBySlug(slug) : null;
-      if (!category) throw AppError.notFound('The category');
-      if (actor.categoryIds && !actor.categoryIds.includes(category.id)) {
-        throw AppError.forbidden('This category is not one of yours.');
-      }
-      req.category = category;
+      req.category = await categoryForActor(actor, req.params[access.category]);
     }
     next();
   };

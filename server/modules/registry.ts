@@ -2,6 +2,7 @@ import { Router } from 'express';
 import type { RouteDef } from '../lib/route';
 import { guard } from '../middleware/guard';
 import { authRoutes } from './auth/auth.routes';
+import { calibrationRoutes } from './calibrations/calibrations.routes';
 import { categoryRoutes } from './categories/categories.routes';
 import { digestRoutes } from './digests/digests.routes';
 import { healthRoutes } from './health/health.routes';
@@ -26,6 +27,7 @@ export const apiRoutes: RouteDef[] = [
   ...jobRoutes,
   ...openapiRoutes,
   ...scoreRoutes,
+  ...calibrationRoutes,
   ...importRoutes,
   ...tokenRoutes,
   ...standingsRoutes,

@@ -144,8 +144,13 @@ describe("the analyst's path through the screens", () => {
     await page.getByRole('heading', { name: 'Calibrate Trail Packs' }).waitFor();
     await page
       .getByLabel('Skus, best first')
-      .fill(['sku', ...ordering.slice(0, 3), 'TP-NOPE', ...ordering.slice(3)].join('\n'));
+      .fill(['sku', ...ordering.slice(0, 3), 'TP-NOPE', ...ordering.slice(3), ordering[1]!].join('\n'));
     await page.getByText('Skus not found in this category').waitFor();
+    // The repeat on the last line is reported by its line, not dropped without a word.
+    await page
+      .getByTestId('repeated-skus')
+      .getByText(`Line ${ordering.length + 3}: ${ordering[1]} was already listed on line 3.`)
+      .waitFor();
     await page.getByRole('button', { name: 'Drop' }).click();
     await page.getByRole('button', { name: 'Run calibration' }).click();
     const best = page.getByTestId('best-interval');
@@ -160,6 +165,10 @@ describe("the analyst's path through the screens", () => {
     await page.getByText('Saved to the category.').waitFor();
     await page.getByText('Ordering made with m = 40 (test)').waitFor();
     await shot(page, 'calibrate.png');
+    await page.setViewportSize({ width: 1440, height: 900 });
+    await shot(page, 'calibrate-1440.png');
+    await page.setViewportSize({ width: 390, height: 844 });
+    await shot(page, 'calibrate-390.png');
     await page.context().close();
   });
 });

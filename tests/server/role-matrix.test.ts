@@ -59,6 +59,7 @@ const expected: Record<string, Allowed> = {
   'GET /api/categories/:slug/calibration-notes': 'signed-in',
   'POST /api/categories/:slug/calibration-notes': ['analyst', 'manager', 'admin'],
   'POST /api/score': 'signed-in',
+  'POST /api/calibrations': 'signed-in',
   'GET /api/categories/:slug/digests': 'signed-in',
   'GET /api/categories/:slug/digests/:week/pdf': 'signed-in',
   'GET /api/portfolio/digests': ['admin', 'ops', 'analyst', 'exec'],
@@ -210,6 +211,7 @@ describe('role matrix over every registered API route, by API token', () => {
   it('lets some routes take tokens, so the comparison above is not empty', () => {
     const open = apiRoutes.filter((r) => r.access.kind === 'roles' && r.access.tokens === true);
     expect(open.map((r) => key(r.method, r.path)).sort()).toEqual([
+      'POST /api/calibrations',
       'POST /api/ingest/aggregates',
       'POST /api/ingest/reviews',
       'POST /api/score',

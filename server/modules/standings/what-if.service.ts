@@ -143,12 +143,84 @@ export async function listCalibrationNotes(category: CategoryRef): Promise<Calib
   return rows.map(toNote);
 }
 
+/**
+ * A stored note is read by everyone as evidence, so its figures must be ones calibrate() can produce
+ * against the week it names: counts that add up, tau-b within [-1, 1], skus of that week, finite figures.
+ */
+export function calibrationNoteProblem(
+  input: CalibrationNoteInput,
+  weekSkus: ReadonlySet<string>,
+): { field: string; reason: string } | null {
+  const finite = (x: number | null) => x === null || Number.isFinite(x);
+  const isTau = (t: number | null) => t === null || (Number.isFinite(t) && t >= -1 && t <= 1);
+  if (input.matchedCount + input.unmatched.length !== input.observedCount)
+    return {
+      field: 'observedCount',
+      reason: `${input.matchedCount} matched and ${input.unmatched.length} not found do not add up to ${input.observedCount} observed.`,
+    };
+  if (input.matchedCount > weekSkus.size)
+    return {
+      field: 'matchedCount',
+      reason: `${input.matchedCount} items matched, but the week has only ${weekSkus.size}.`,
+    };
+  // A prior mean is a mean of 1-5 star ratings.
+  if (!Number.isFinite(input.C) || input.C < 1 || input.C > 5)
+    return { field: 'C', reason: `the prior mean ${input.C} is not between 1 and 5 stars.` };
+  const { start, end, point, tau } = input.best;
+  if (!finite(start) || !finite(end) || !finite(point))
+    return { field: 'best', reason: 'the best interval has a figure that is not a finite number.' };
+  if ((end !== null && (end < start || point > end)) || point < start)
+    return { field: 'best', reason: 'the representative prior weight lies outside the best interval.' };
+  if (!isTau(tau)) return { field: 'best.tau', reason: `tau-b ${tau} is not between -1 and 1.` };
+  for (const s of input.strategies) {
+    if (!finite(s.m) || (s.m !== null && s.m < 0))
+      return {
+        field: 'strategies',
+        reason: `the prior weight of ${s.strategy} is not a finite number of 0 or more.`,
+      };
+    if (!isTau(s.tau))
+      return { field: 'strategies', reason: `tau-b ${s.tau} of ${s.strategy} is not between -1 and 1.` };
+  }
+  if (input.unexplained.length > input.matchedCount)
+    return { field: 'unexplained', reason: 'more items are unexplained than were matched.' };
+  for (const u of input.unexplained) {
+    if (!weekSkus.has(u.sku))
+      return { field: 'unexplained', reason: `${u.sku} is not an item of ${input.isoWeek}.` };
+    const inRange = (p: number) => p >= 1 && p <= input.matchedCount;
+    if (
+      !inRange(u.observedPosition) ||
+      !inRange(u.fittedPosition) ||
+      u.gap !== u.observedPosition - u.fittedPosition
+    )
+      return {
+        field: 'unexplained',
+        reason: `the positions given for ${u.sku} do not fit ${input.matchedCount} matched items.`,
+      };
+  }
+  for (const sku of input.unmatched)
+    if (weekSkus.has(sku))
+      return {
+        field: 'unmatched',
+        reason: `${sku} is listed as not found, but it is an item of ${input.isoWeek}.`,
+      };
+  return null;
+}
+
 export async function saveCalibrationNote(
   category: CategoryRef,
   input: CalibrationNoteInput,
   actor: Actor,
 ): Promise<CalibrationNote> {
-  await findWeek(category, input.isoWeek);
+  const week = await findWeek(category, input.isoWeek);
+  const rows = await db().query<{ sku: string }>(
+    `SELECT i.sku FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id WHERE sr.snapshot_id = :id`,
+    { replacements: { id: week.id }, type: QueryTypes.SELECT },
+  );
+  const problem = calibrationNoteProblem(input, new Set(rows.map((r) => r.sku)));
+  if (problem)
+    throw new AppError('validation_failed', `This calibration cannot be saved: ${problem.reason}`, 400, [
+      { path: problem.field, message: problem.reason },
+    ]);
   const { isoWeek, note, ...result } = input;
   const row = await CalibrationNoteModel.create({
     categoryId: category.id,

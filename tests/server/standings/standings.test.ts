@@ -497,4 +497,31 @@ describe('calibration notes', () => {
       .send({ ...note, isoWeek: week })
       .expect(403);
   });
+
+  it('refuses a note whose figures the evidence cannot give, naming the field and the reason', async () => {
+    const week = (await snapshotsOf(packs)).at(-1)!.iso_week;
+    const bad: [string, Record<string, unknown>][] = [
+      ['observedCount', { observedCount: 0, matchedCount: 3 }],
+      ['matchedCount', { observedCount: 100000, matchedCount: 100000 }],
+      ['C', { C: -1e300 }],
+      ['strategies', { strategies: [{ strategy: 'mean', m: 12, tau: 99 }] }],
+      [
+        'unexplained',
+        { unexplained: [{ sku: 'NO-SUCH-SKU', observedPosition: 3, fittedPosition: 1, gap: 2 }] },
+      ],
+      ['unexplained', { unexplained: [{ sku: 'TP-2031', observedPosition: 3, fittedPosition: 1, gap: 5 }] }],
+    ];
+    for (const [field, change] of bad) {
+      const res = await analyst
+        .post(`/api/categories/${packs}/calibration-notes`)
+        .set('x-csrf-token', analyst.csrf)
+        .send({ ...note, ...change, isoWeek: week })
+        .expect(400);
+      const body = res.body as { error: { message: string; details: { path: string; message: string }[] } };
+      expect(body.error.details[0]!.path, JSON.stringify(change)).toBe(field);
+      expect(body.error.message).not.toMatch(/\.\w+Count|settings\./);
+    }
+    const list = await analyst.get(`/api/categories/${packs}/calibration-notes`).expect(200);
+    expect((list.body as { C: number }[]).every((n) => n.C === note.C)).toBe(true);
+  });
 });

@@ -1,14 +1,12 @@
 import { Line } from 'react-chartjs-2';
 import type { CalibrationResult } from '../../../../shared/scoring';
 import { chartColours } from '../../../components/charts/chart-setup';
+import { curveAxis } from './observed-summary';
 
 /** Kendall's tau-b against the prior weight: a step function, drawn as steps on a log axis. */
 export function AgreementCurve({ result }: { result: CalibrationResult }) {
   const steps = result.curve;
-  const first = steps.find((s) => s.start > 0)?.start ?? 1;
-  const lastStart = steps.at(-1)?.start ?? first;
-  const lo = Math.max(first / 4, 0.01);
-  const hi = Math.max(lastStart * 4, lo * 10);
+  const { lo, hi } = curveAxis(result);
   const points = steps.map((s) => ({ x: Math.max(s.start, lo), y: s.tau }));
   points.push({ x: hi, y: steps.at(-1)?.tau ?? null });
   const best = result.best;

@@ -14,7 +14,7 @@ import { fmt } from '../../../lib/format';
 import { useCalibrationNotes } from '../api/get-calibration-notes';
 import { useSaveCalibrationNote } from '../api/save-calibration-note';
 import { AgreementCurve } from './agreement-curve';
-import { parseObserved } from './parse-observed';
+import { parseObservedLines, summarizeObserved } from './observed-summary';
 
 const strategyNames: Record<string, string> = {
   mean: 'Mean count',
@@ -56,15 +56,14 @@ export function CalibrationWorkbench({
 
   const items = evidence.items as unknown as ItemSummary[];
   const known = useMemo(() => new Map(items.map((i) => [keyOf(i.sku), i.sku])), [items]);
-  const parsed = useMemo(() => parseObserved(text), [text]);
+  const lines = useMemo(() => parseObservedLines(text), [text]);
   const resolve = (sku: string): string | null => {
     if (dropped.has(sku)) return null;
     const wanted = fixes[sku] ?? sku;
     return known.get(keyOf(wanted)) ?? null;
   };
-  const unknown = [...new Set(parsed.filter((sku) => !known.has(keyOf(sku))))];
-  const mapped = parsed.map(resolve).filter((s): s is string => s !== null);
-  const unresolved = unknown.filter((sku) => !dropped.has(sku) && resolve(sku) === null);
+  const summary = summarizeObserved(lines, known, fixes, dropped);
+  const { unknown, unresolved, matched: mapped } = summary;
 
   const run = () => {
     setRunError(null);
@@ -73,7 +72,7 @@ export function CalibrationWorkbench({
         asOf: evidence.asOf,
         unexplainedCount: 10,
       });
-      setResult({ value, observed: parsed.length });
+      setResult({ value, observed: summary.read });
     } catch (err) {
       setResult(null);
       setRunError(errorMessage(err));
@@ -129,11 +128,21 @@ export function CalibrationWorkbench({
               />
             </div>
             <p className="text-sm text-ink-700" aria-live="polite">
-              <span className="font-mono font-semibold">{parsed.length}</span> lines read,{' '}
+              <span className="font-mono font-semibold">{summary.read}</span> lines read:{' '}
               <span className="font-mono font-semibold">{mapped.length}</span> matched to items
-              {unknown.length > 0 ? (
+              {summary.duplicates.length > 0 ? (
                 <>
-                  , <span className="font-mono font-semibold">{unknown.length}</span> unknown
+                  , <span className="font-mono font-semibold">{summary.duplicates.length}</span> repeated
+                </>
+              ) : null}
+              {summary.unresolvedLines > 0 ? (
+                <>
+                  , <span className="font-mono font-semibold">{summary.unresolvedLines}</span> not found
+                </>
+              ) : null}
+              {summary.droppedLines > 0 ? (
+                <>
+                  , <span className="font-mono font-semibold">{summary.droppedLines}</span> dropped
                 </>
               ) : null}
               .
@@ -148,6 +157,30 @@ export function CalibrationWorkbench({
             ) : null}
           </div>
         </div>
+        {summary.duplicates.length > 0 ? (
+          <div
+            className="mt-4 rounded-md border border-brass-300 bg-brass-100/50 p-3"
+            data-testid="repeated-skus"
+          >
+            <h3 className="text-sm font-bold text-ink-900">Skus listed more than once</h3>
+            <p className="text-xs text-ink-700">
+              Only the first position of each counts in the fit; the repeats are left out.
+            </p>
+            <ul className="mt-2 space-y-1 text-sm">
+              {summary.duplicates.slice(0, 50).map((d) => (
+                <li key={d.line}>
+                  Line {d.line}: <span className="font-mono">{d.sku}</span> was already listed on line{' '}
+                  {d.firstLine}.
+                </li>
+              ))}
+            </ul>
+            {summary.duplicates.length > 50 ? (
+              <p className="mt-1 text-xs text-ink-700">
+                and {summary.duplicates.length - 50} more repeated lines.
+              </p>
+            ) : null}
+          </div>
+        ) : null}
         {unknown.length > 0 ? (
           <div className="mt-4 rounded-md border border-brass-300 bg-brass-100/50 p-3">
             <h3 className="text-sm font-bold text-ink-900">Skus not found in this category</h3>
@@ -332,7 +365,7 @@ export function CalibrationWorkbench({
                   {
                     isoWeek: evidence.isoWeek,
                     note: note.trim(),
-                    observedCount: result.observed,
+                    observedCount: r.matchedCount + r.unmatched.length,
                     matchedCount: r.matchedCount,
                     unmatched: r.unmatched.slice(0, 500),
                     C: r.C,
