@@ -30,6 +30,21 @@ export async function loadActor(userId: number): Promise<Actor | null> {
   };
 }
 
+async function refuseLocked(email: string, lockedUntil: Date, now: Date, ip?: string): Promise<never> {
+  await recordAudit({
+    actorEmail: email,
+    action: 'auth.sign_in_failed',
+    details: { reason: 'locked' },
+    ip,
+  });
+  const minutes = Math.max(1, Math.ceil((lockedUntil.getTime() - now.getTime()) / 60_000));
+  throw new AppError(
+    'account_locked',
+    `This account is locked after too many failed sign-ins. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or ask an administrator to unlock it.`,
+    423,
+  );
+}
+
 /** Checks an e-mail and password, counting failures towards a temporary lock of the account. */
 export async function verifyCredentials(
   email: string,
@@ -49,39 +64,43 @@ export async function verifyCredentials(
     });
     throw AppError.unauthenticated('That e-mail and password do not match an account.');
   }
-  if (user.lockedUntil && user.lockedUntil > now) {
-    await recordAudit({
-      actorEmail: email,
-      action: 'auth.sign_in_failed',
-      details: { reason: 'locked' },
-      ip,
-    });
-    const minutes = Math.max(1, Math.ceil((user.lockedUntil.getTime() - now.getTime()) / 60_000));
-    throw new AppError(
-      'account_locked',
-      `This account is locked after too many failed sign-ins. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or ask an administrator to unlock it.`,
-      423,
-    );
-  }
+  if (user.lockedUntil && user.lockedUntil > now) await refuseLocked(email, user.lockedUntil, now, ip);
   const matches = await bcrypt.compare(password, user.passwordHash);
-  if (!matches || !user.active) {
-    const failedLogins = user.failedLogins + 1;
+  // Count and lock under a row lock, after the slow compare: parallel guesses each count once and none
+  // slips through a lock that another guess set meanwhile.
+  const outcome = await User.sequelize!.transaction(async (transaction) => {
+    const row = await User.findByPk(user.id, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!row) return { kind: 'gone' as const };
+    if (row.lockedUntil && row.lockedUntil > now) return { kind: 'locked' as const, until: row.lockedUntil };
+    if (matches && row.active) {
+      await row.update({ failedLogins: 0, lockedUntil: null, lastLoginAt: now }, { transaction });
+      return { kind: 'ok' as const };
+    }
+    const failedLogins = row.failedLogins + 1;
     const lock = failedLogins >= policy.maxAttempts;
-    await user.update({
-      failedLogins: lock ? 0 : failedLogins,
-      lockedUntil: lock ? addMinutes(now, policy.lockMinutes) : null,
-    });
+    await row.update(
+      {
+        failedLogins: lock ? 0 : failedLogins,
+        lockedUntil: lock ? addMinutes(now, policy.lockMinutes) : null,
+      },
+      { transaction },
+    );
+    return { kind: 'failed' as const, lock, active: row.active };
+  });
+  if (outcome.kind === 'gone')
+    throw AppError.unauthenticated('That e-mail and password do not match an account.');
+  if (outcome.kind === 'locked') await refuseLocked(email, outcome.until, now, ip);
+  if (outcome.kind === 'failed') {
     await recordAudit({
       actor: { kind: 'user', id: user.id, email: user.email },
       action: 'auth.sign_in_failed',
-      details: { reason: user.active ? 'wrong password' : 'account disabled', locked: lock },
+      details: { reason: outcome.active ? 'wrong password' : 'account disabled', locked: outcome.lock },
       ip,
     });
-    if (!user.active && matches)
+    if (!outcome.active && matches)
       throw AppError.forbidden('This account has been disabled. Ask an administrator.');
     throw AppError.unauthenticated('That e-mail and password do not match an account.');
   }
-  await user.update({ failedLogins: 0, lockedUntil: null, lastLoginAt: now });
   const actor = await loadActor(user.id);
   if (!actor) throw AppError.unauthenticated('That e-mail and password do not match an account.');
   await recordAudit({ actor, action: 'auth.sign_in', ip });
