@@ -78,7 +78,7 @@ export class SnapshotRow extends Model<InferAttributes<SnapshotRow>, InferCreati
         stale: { type: DataTypes.BOOLEAN, allowNull: true },
         thin: { type: DataTypes.BOOLEAN, allowNull: false },
         negativeCluster: { type: DataTypes.BOOLEAN, allowNull: true },
-        // A whole number that can pass 2^53: see migrations/20261202230000-widen-reviews-to-pass.ts.
+        // A whole number that can pass 2^53: see migrations/20261202230200-widen-reviews-to-pass.ts.
         reviewsToPass: dbl(),
         details: { type: DataTypes.JSON, allowNull: false },
       },
