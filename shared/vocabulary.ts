@@ -67,14 +67,25 @@ export const fieldLabels: Record<string, string> = {
   timeZone: 'Time zone',
 };
 
-/** The label of the innermost named field of a path like settings.priorWeightValue or recipients.0. */
-export function fieldLabel(path: readonly PropertyKey[]): string | null {
-  const name = [...path].reverse().find((p): p is string => typeof p === 'string');
-  if (!name) return null;
+function nameOf(name: string): string {
   const known = fieldLabels[name];
   if (known) return known;
   const words = name.replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase();
   return words.charAt(0).toUpperCase() + words.slice(1);
+}
+
+/**
+ * The label of the innermost named field of a path like settings.priorWeightValue or recipients.0; inside
+ * a list it says which entry, counted from 1 as a person counts: items.1.mean is "Mean of items entry 2".
+ */
+export function fieldLabel(path: readonly PropertyKey[]): string | null {
+  const at = path.findLastIndex((p) => typeof p === 'string');
+  if (at < 0) return null;
+  const label = nameOf(path[at] as string);
+  const index = path.slice(0, at).findLastIndex((p) => typeof p === 'number');
+  const list = index > 0 ? path[index - 1] : undefined;
+  if (index < 0 || typeof list !== 'string') return label;
+  return `${label} of ${nameOf(list).toLowerCase()} entry ${(path[index] as number) + 1}`;
 }
 
 /** "Prior weight m: must be given" for an engine error at settings.priorWeightValue. */

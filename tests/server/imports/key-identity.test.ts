@@ -54,7 +54,7 @@ const review = (reviewId: string, sku: string, extra: Record<string, unknown> = 
 });
 
 async function finished(id: number): Promise<ImportBatchRecord> {
-  for (let i = 0; i < 600; i++) {
+  for (const deadline = Date.now() + 120_000; Date.now() < deadline;) {
     const batch = (await ops.get(`/api/imports/${id}`).expect(200)).body as ImportBatchRecord;
     if (batch.status !== 'queued' && batch.status !== 'running') return batch;
     await sleep(50);
@@ -276,24 +276,35 @@ describe('imports at the same time', () => {
         '\n',
       ) +
       '\nch-new,CH-NEW,Tool new,garden-tools,5,2026-05-02\n';
-    const up = await uploadCsv(csv, 'all_or_nothing').expect(202);
-    // Wait for the upload's second chunk to queue behind the uncommitted item, then let it through.
-    for (let waiting = 0; waiting === 0;) {
-      const [row] = await select<{ n: number }>(
-        "SELECT COUNT(*) AS n FROM information_schema.INNODB_TRX WHERE trx_state = 'LOCK WAIT'",
+    let committed = false;
+    try {
+      const up = await uploadCsv(csv, 'all_or_nothing').expect(202);
+      // Wait for the upload's second chunk to queue behind the uncommitted item, then let it through. Other
+      // test files share this MariaDB server, so only lock waits in this file's database count.
+      const deadline = Date.now() + 120_000;
+      for (let waiting = 0; waiting === 0;) {
+        if (Date.now() > deadline) throw new Error('the upload never reached the uncommitted item');
+        const [row] = await select<{ n: number }>(
+          `SELECT COUNT(*) AS n FROM information_schema.INNODB_TRX x
+             JOIN information_schema.PROCESSLIST p ON p.ID = x.trx_mysql_thread_id
+            WHERE x.trx_state = 'LOCK WAIT' AND p.DB = DATABASE()`,
+        );
+        waiting = Number(row!.n);
+        if (waiting === 0) await sleep(20);
+      }
+      await other.commit();
+      committed = true;
+      const batch = await finished((up.body as ImportBatchRecord).id);
+      expect(batch.status, batch.errorMessage ?? '').toBe('succeeded');
+      expect(batch.rowsInserted).toBe(chunkRows + 1);
+      const [n] = await select<{ n: number }>(
+        "SELECT COUNT(*) AS n FROM reviews r JOIN items i ON i.id = r.item_id WHERE i.sku = 'CH-NEW'",
       );
-      waiting = Number(row!.n);
-      if (waiting === 0) await sleep(20);
+      expect(Number(n!.n)).toBe(1);
+    } finally {
+      if (!committed) await other.rollback();
     }
-    await other.commit();
-    const batch = await finished((up.body as ImportBatchRecord).id);
-    expect(batch.status, batch.errorMessage ?? '').toBe('succeeded');
-    expect(batch.rowsInserted).toBe(chunkRows + 1);
-    const [n] = await select<{ n: number }>(
-      "SELECT COUNT(*) AS n FROM reviews r JOIN items i ON i.id = r.item_id WHERE i.sku = 'CH-NEW'",
-    );
-    expect(Number(n!.n)).toBe(1);
-  });
+  }, 180_000);
 
   it('two all-or-nothing ingests on two app servers never answer 500 and lose nothing', async () => {
     const config = loadConfig({
@@ -324,5 +335,5 @@ describe('imports at the same time', () => {
     } finally {
       (second.locals.shutdown as () => void)();
     }
-  });
+  }, 120_000);
 });

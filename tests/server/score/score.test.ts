@@ -52,7 +52,8 @@ describe('POST /api/score', () => {
       })
       .expect(400);
     expect(res.body.error.code).toBe('validation_failed');
-    expect(res.body.error.message).toMatch(/^items\.1\.mean: /);
+    expect(res.body.error.message).toBe('Mean of items entry 2: must be between 1 and 5');
+    expect(res.body.error.details[0].path).toBe('items.1.mean');
   });
 
   it('answers 400 for an empty category and 401 without a session', async () => {
@@ -61,7 +62,7 @@ describe('POST /api/score', () => {
       .set('x-csrf-token', analyst.csrf)
       .send({ items: [] })
       .expect(400);
-    expect(res.body.error.message).toMatch(/items/);
+    expect(res.body.error.message).toMatch(/^Items: /);
     const anonymous = await t.anonymous();
     await anonymous.post('/api/score').set('x-csrf-token', anonymous.csrf).send({ items: [] }).expect(401);
   });
