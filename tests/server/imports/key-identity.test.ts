@@ -278,7 +278,12 @@ describe('imports at the same time', () => {
       '\nch-new,CH-NEW,Tool new,garden-tools,5,2026-05-02\n';
     const up = await uploadCsv(csv, 'all_or_nothing').expect(202);
     // Wait for the upload's second chunk to queue behind the uncommitted item, then let it through.
+    const deadline = Date.now() + 60_000;
     for (let waiting = 0; waiting === 0;) {
+      if (Date.now() > deadline) {
+        await other.rollback();
+        throw new Error('The upload never queued behind the uncommitted item');
+      }
       const [row] = await select<{ n: number }>(
         "SELECT COUNT(*) AS n FROM information_schema.INNODB_TRX WHERE trx_state = 'LOCK WAIT'",
       );
