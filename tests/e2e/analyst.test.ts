@@ -114,8 +114,10 @@ describe("the analyst's path through the screens", () => {
       .toMatch(/^\d+ of \d+ items change/);
     expect(await page.getByTestId('preview-only').count()).toBe(1);
     expect(await page.getByRole('button', { name: 'Save settings' }).count()).toBe(0);
+    const atZero = await previewSkus(page);
     await page.getByLabel('Fixed prior weight').fill('120');
-    await page.waitForTimeout(300);
+    // Screenshot the ordering at 120 once it has been recomputed, not after a guessed pause.
+    await expect.poll(() => previewSkus(page)).not.toEqual(atZero);
     await shot(page, 'what-if.png');
     await page.context().close();
   });

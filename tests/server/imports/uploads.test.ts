@@ -222,7 +222,11 @@ describe('POST /api/imports', () => {
     const stamp = await count(
       "SELECT UNIX_TIMESTAMP(MAX(updated_at)) AS n FROM reviews WHERE external_id LIKE 'idem-%'",
     );
-    await sleep(1100);
+    // updated_at has whole-second precision: wait until the database clock has moved past the stamp, so
+    // that a touched row would show a later one.
+    await expect
+      .poll(() => count('SELECT UNIX_TIMESTAMP() AS n'), { timeout: 10_000 })
+      .toBeGreaterThan(stamp);
     const again = await importFile(ops, Buffer.from(csv), 'reviews', 'valid_rows', 'idem.csv');
     expect(again).toMatchObject({ status: 'succeeded', rowsAccepted: 20, rowsInserted: 0, rowsUpdated: 0 });
     expect(await count('SELECT COUNT(*) AS n FROM reviews')).toBe(total);
