@@ -51,7 +51,10 @@ export function rememberSession(signedIn: boolean): void {
   else storage()?.removeItem(sessionMark);
 }
 
-/** Whether a session was held here and is now gone; the sign-in page forgets it once it has said so. */
+/**
+ * Whether this browser held a session: set by a successful sign-in or /api/me, cleared only by signing out,
+ * so every redirect of one ended session (several requests may meet the 401) says the same.
+ */
 export function sessionEnded(): boolean {
   return storage()?.getItem(sessionMark) === '1';
 }

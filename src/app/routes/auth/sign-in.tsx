@@ -1,5 +1,4 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useEffect } from 'react';
 import { useForm } from 'react-hook-form';
 import { useNavigate, useSearchParams } from 'react-router-dom';
 import { signInSchema, type SignInInput } from '../../../../shared/auth';
@@ -7,7 +6,6 @@ import markUrl from '../../../assets/ballast-mark.svg';
 import { Button } from '../../../components/ui/button';
 import { errorMessage } from '../../../components/ui/status';
 import { useSignIn } from '../../../features/auth/api/sign-in';
-import { rememberSession } from '../../../lib/api-client';
 
 function safeNext(next: string | null): string {
   return next && next.startsWith('/') && !next.startsWith('//') ? next : '/';
@@ -17,8 +15,6 @@ export function Component() {
   const [params] = useSearchParams();
   const navigate = useNavigate();
   const signIn = useSignIn();
-  // On this page no session is held; the notice below comes from the address, which said so already.
-  useEffect(() => rememberSession(false), []);
   const {
     register,
     handleSubmit,
