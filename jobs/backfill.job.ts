@@ -1,3 +1,4 @@
+import { countOf } from '../shared/plural';
 import { AppError } from '../server/lib/app-error';
 import { backfillSnapshots } from '../server/modules/snapshots/snapshots.service';
 import type { JobContext, JobResult } from './job-context';
@@ -13,7 +14,7 @@ export async function run(ctx: JobContext): Promise<JobResult> {
     log: ctx.log,
     onProgress: ctx.progress,
   });
-  ctx.log(`Backfill wrote ${outcomes.length} weekly snapshot(s).`);
+  ctx.log(`Backfill wrote ${countOf(outcomes.length, 'weekly snapshot')}.`);
   return {
     rows: outcomes.reduce((sum, o) => sum + o.rows, 0),
     isoWeek: outcomes.at(-1)?.isoWeek ?? null,

@@ -1,6 +1,7 @@
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import { setTimeout as sleep } from 'node:timers/promises';
+import { countOf } from '../shared/plural';
 import { parseInstant } from '../shared/clock';
 import { latestDue } from '../shared/schemas/schedules.schema';
 import { jobEvents } from '../server/modules/jobs/job-events';
@@ -82,7 +83,8 @@ export class Scheduler {
     this.accepting = true;
     await this.reload();
     const caughtUp = await this.catchUp();
-    if (caughtUp.length > 0) this.log(`Catching up: ${caughtUp.length} run(s) missed while stopped.`);
+    if (caughtUp.length > 0)
+      this.log(`Catching up: ${countOf(caughtUp.length, 'run')} missed while stopped.`);
     await this.pollQueue();
     const every = (ms: number, name: string, fn: () => Promise<unknown>): void => {
       const timer = setInterval(() => void this.guarded(name, fn), ms);
@@ -174,7 +176,8 @@ export class Scheduler {
     const now = this.now();
     const staleBefore = new Date(now.getTime() - (this.options.staleAfterMs ?? 120_000));
     const retries = await recoverStaleRuns(staleBefore, this.owner, now);
-    if (retries.length > 0) this.log(`Recovered ${retries.length} run(s) left by a stopped app server.`);
+    if (retries.length > 0)
+      this.log(`Recovered ${countOf(retries.length, 'run')} left by a stopped app server.`);
     const ids = await claimQueuedRuns(this.owner, now);
     this.enqueue(ids);
     return ids;

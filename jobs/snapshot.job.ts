@@ -1,3 +1,4 @@
+import { countOf } from '../shared/plural';
 import { AppError } from '../server/lib/app-error';
 import { takeSnapshot } from '../server/modules/snapshots/snapshots.service';
 import type { JobContext, JobResult } from './job-context';
@@ -14,7 +15,7 @@ export async function run(ctx: JobContext): Promise<JobResult> {
       log: ctx.log,
     });
     ctx.log(
-      `${outcome.replaced ? 'Replaced' : 'Took'} snapshot ${outcome.snapshotId} of ${outcome.isoWeek}: ${outcome.rows} rows.`,
+      `${outcome.replaced ? 'Replaced' : 'Took'} snapshot ${outcome.snapshotId} of ${outcome.isoWeek}: ${countOf(outcome.rows, 'row')}.`,
     );
     return { rows: outcome.rows, isoWeek: outcome.isoWeek };
   } catch (err) {

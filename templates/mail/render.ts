@@ -9,7 +9,10 @@ export type DigestMailView = {
   weekRange: string;
   preheader: string;
   fileName: string;
-  pageCount: number;
+  /** "3 pages" */
+  pages: string;
+  /** What the attached PDF holds. */
+  contents: string;
   recipient: string;
   targetLabel: string;
   unsubscribeUrl: string;

@@ -1,3 +1,4 @@
+import { countOf } from '../../shared/plural';
 import type { CategoryDigestData, DigestItem, PaperSize } from '../../shared/schemas/digests.schema';
 import { priorWeightApplied, standingsColumns as label, terms } from '../../shared/vocabulary';
 import {
@@ -205,7 +206,7 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
   c.y = chartTop + chartSize + 30;
   note(
     c,
-    `Spearman's rho ${num(f.spearmanRho, 3)} and Kendall's tau-b ${num(f.kendallTauB, 3)} measure how far the two orderings agree (1 is identical). On average an item moves ${num(f.meanAbsDrift, 1)} places; the largest move is ${int(f.maxAbsDrift)} places. ${f.topOverlap.shared} of the top ${f.topOverlap.depth} are the same in both.`,
+    `Spearman's rho ${num(f.spearmanRho, 3)} and Kendall's tau-b ${num(f.kendallTauB, 3)} measure how far the two orderings agree (1 is identical). On average an item moves ${num(f.meanAbsDrift, 1)} places; the largest move is ${countOf(f.maxAbsDrift, 'place')}. ${f.topOverlap.shared} of the top ${f.topOverlap.depth} are the same in both.`,
   );
 
   const thin = thinLeaders(data);

@@ -1,8 +1,25 @@
 import type { CategoryDigestData, PaperSize, PortfolioDigestData } from '../../shared/schemas/digests.schema';
-import { bullets, dash, driftChart, heading, int, longDate, note, num, signed, table, tiles } from './blocks';
+import { countOf } from '../../shared/plural';
+import { bullets, dash, driftChart, heading, int, longDate, note, num, table, tiles } from './blocks';
 import { Canvas } from './canvas';
 import { buriedItems, keyTiles, thinLeaders, type RenderedPdf } from './category-digest';
 import { colours } from './theme';
+
+/** Lines of the portfolio digest's "since last week" list; the full list is in the category's own digest. */
+export const shortChangesLimit = 5;
+
+/**
+ * The first lines of a category's changes that fit the portfolio digest, and a closing line saying how many
+ * more the category digest holds: a list is never cut without saying so.
+ */
+export function shortChanges(changes: string[], categoryName: string, limit = shortChangesLimit): string[] {
+  if (changes.length <= limit) return changes;
+  const shown = changes.slice(0, limit - 1);
+  return [
+    ...shown,
+    `And ${countOf(changes.length - shown.length, 'more change')}: the full list is in the ${categoryName} digest.`,
+  ];
+}
 
 function rhoChange(c: CategoryDigestData): string {
   const now = c.figures.spearmanRho;
@@ -66,7 +83,7 @@ function categoryPage(c: Canvas, d: CategoryDigestData): void {
   const cluster = d.items.find((i) => i.negativeCluster);
   const lines = [
     thin
-      ? `Thin leader: ${thin.sku}, raw #${thin.naiveRank} on ${thin.n} reviews, smoothed #${thin.smoothedRank}.`
+      ? `Thin leader: ${thin.sku}, raw #${thin.naiveRank} on ${countOf(thin.n, 'review')}, smoothed #${thin.smoothedRank}.`
       : 'No leader on thin evidence.',
     buried
       ? `Buried: ${buried.sku}, smoothed #${buried.smoothedRank} but raw #${buried.naiveRank}.`
@@ -74,7 +91,7 @@ function categoryPage(c: Canvas, d: CategoryDigestData): void {
     cluster
       ? `Cluster: ${cluster.sku}${cluster.recurringPhrases[0] ? `, "${cluster.recurringPhrases[0].phrase}"` : ''}.`
       : 'No negative cluster.',
-    `${d.figures.staleCount} stale item${d.figures.staleCount === 1 ? '' : 's'}; ${d.figures.movers.length} mover${d.figures.movers.length === 1 ? '' : 's'}.`,
+    `${countOf(d.figures.staleCount, 'stale item')}; ${countOf(d.figures.movers.length, 'mover')}.`,
   ];
   for (const l of lines) {
     for (const w of c.wrap(l, width, 'regular', 8)) {
@@ -89,7 +106,7 @@ function categoryPage(c: Canvas, d: CategoryDigestData): void {
     size: 9.5,
   });
   c.y += 15;
-  bullets(c, d.story.changes.slice(0, 5), { size: 8.5 });
+  bullets(c, shortChanges(d.story.changes, d.category.name), { size: 8.5 });
 }
 
 /** Renders the executives' portfolio digest: a cover comparing categories, then one page per category. */
@@ -99,7 +116,7 @@ export async function renderPortfolioDigest(
 ): Promise<RenderedPdf> {
   const c = new Canvas(paper, {
     title: `Ballast portfolio digest, ${data.isoWeek}`,
-    subject: `Naive and smoothed rating rankings across ${data.categories.length} categories for ${data.isoWeek}`,
+    subject: `Naive and smoothed rating rankings across ${countOf(data.categories.length, 'category', 'categories')} for ${data.isoWeek}`,
   });
   const band = 150;
   c.rect(0, 0, c.pageWidth, band, colours.ink);
@@ -113,7 +130,7 @@ export async function renderPortfolioDigest(
     width: c.width,
   });
   c.text(
-    `${longDate(data.weekStart)} to ${longDate(data.weekEnd)} · ${data.categories.length} categories`,
+    `${longDate(data.weekStart)} to ${longDate(data.weekEnd)} · ${countOf(data.categories.length, 'category', 'categories')}`,
     c.left,
     112,
     {
@@ -179,7 +196,7 @@ export async function renderPortfolioDigest(
   if (biggest) {
     note(
       c,
-      `Largest weekly move by smoothed score: ${biggest.m.sku} in ${biggest.d.category.name}, ${signed(biggest.m.smoothedMovement)} places.`,
+      `Largest weekly move by smoothed score: ${biggest.m.sku} in ${biggest.d.category.name}, ${biggest.m.smoothedMovement > 0 ? 'up' : 'down'} ${countOf(Math.abs(biggest.m.smoothedMovement), 'place')}.`,
     );
   }
 

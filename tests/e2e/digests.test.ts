@@ -192,9 +192,9 @@ describe('digest screens in the browser', () => {
     const text = (await log.textContent())!;
     // the manager of Portable Power and the schedule's extra address; then the exec's portfolio digest
     expect(text).toMatch(new RegExp(`Digest of Portable Power for ${runWeek}: \\d+ pages`));
-    expect(text).toContain('Queued 2 mail(s) of Portable Power (2 subscriber(s)).');
+    expect(text).toContain('Queued 2 mails of Portable Power (2 recipients).');
     expect(text).toMatch(new RegExp(`Portfolio digest for ${runWeek}: \\d+ pages`));
-    expect(text).toContain('Queued 1 portfolio mail(s).');
+    expect(text).toContain('Queued 1 portfolio mail.');
 
     // An older week rendered by hand, as operations can through the API.
     const produced = await page.evaluate(async (isoWeek) => {

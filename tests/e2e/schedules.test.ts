@@ -135,7 +135,7 @@ describe('schedules and job history in the browser', () => {
     const detail = page.getByTestId('job-detail');
     await expect
       .poll(() => detail.locator('pre').textContent(), { timeout: 15_000 })
-      .toContain('Backfill wrote 2 weekly snapshot(s).');
+      .toContain('Backfill wrote 2 weekly snapshots.');
     await page.screenshot({ path: path.join(screenshotDir, 'jobs-backfill.png'), fullPage: true });
     expect(consoleErrors, 'no console errors').toEqual([]);
     await context.close();

@@ -85,7 +85,7 @@ describe('POST /api/jobs/backfill', () => {
     const run = await ops.get(`/api/jobs/${queued.body.runs[0].id}`).expect(200);
     expect(run.body).toMatchObject({ status: 'succeeded', isoWeek: '2026-W42' });
     expect(run.body.params).toMatchObject({ fromWeek: '2026-W40', toWeek: '2026-W42', replace: false });
-    expect(run.body.log.join('\n')).toContain('Backfill wrote 3 weekly snapshot(s).');
+    expect(run.body.log.join('\n')).toContain('Backfill wrote 3 weekly snapshots.');
     const weeks = await Snapshot.findAll({
       where: { categoryId: category.id, isoWeek: ['2026-W40', '2026-W41', '2026-W42'] },
       attributes: ['isoWeek'],

@@ -96,6 +96,22 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
       ? 'No new reviews arrived since last week.'
       : `${countOf(Math.abs(added), 'review')} ${added > 0 ? 'more' : 'fewer'} than last week (${previous.reviewCount.toLocaleString('en-GB')} then).`,
   );
+  // The largest rise and fall come straight after the review count: a shortened list (the portfolio
+  // digest's) keeps its first lines, so neither can be the one dropped.
+  const up = [...f.movers].sort((a, b) => b.smoothedMovement - a.smoothedMovement)[0];
+  const down = [...f.movers].sort((a, b) => a.smoothedMovement - b.smoothedMovement)[0];
+  const title = (sku: string) => {
+    const item = items.find((i) => i.sku === sku);
+    return item ? named(item) : sku;
+  };
+  if (up && up.smoothedMovement > 0) {
+    changes.push(
+      `Biggest rise by smoothed score: ${title(up.sku)}, up ${countOf(up.smoothedMovement, 'place')}.`,
+    );
+  }
+  if (down && down.smoothedMovement < 0) {
+    changes.push(`Biggest fall: ${title(down.sku)}, down ${countOf(-down.smoothedMovement, 'place')}.`);
+  }
   if (f.spearmanRho !== null && previous.spearmanRho !== null) {
     const d = f.spearmanRho - previous.spearmanRho;
     changes.push(
@@ -118,22 +134,9 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
     if (entered.length) changes.push(`Entered the smoothed top ten: ${list(entered)}.`);
     if (left.length) changes.push(`Left the smoothed top ten: ${list(left)}.`);
   }
-  const up = [...f.movers].sort((a, b) => b.smoothedMovement - a.smoothedMovement)[0];
-  const down = [...f.movers].sort((a, b) => a.smoothedMovement - b.smoothedMovement)[0];
-  const title = (sku: string) => {
-    const item = items.find((i) => i.sku === sku);
-    return item ? named(item) : sku;
-  };
-  if (up && up.smoothedMovement > 0) {
-    changes.push(
-      `Biggest rise by smoothed score: ${title(up.sku)}, up ${countOf(up.smoothedMovement, 'place')}.`,
-    );
-  }
-  if (down && down.smoothedMovement < 0) {
-    changes.push(`Biggest fall: ${title(down.sku)}, down ${countOf(-down.smoothedMovement, 'place')}.`);
-  }
   const flagChange = (label: string, now: number, before: number): void => {
-    if (now !== before) changes.push(`${label} went from ${before} to ${now}.`);
+    if (now !== before)
+      changes.push(`${label} went from ${before.toLocaleString('en-GB')} to ${now.toLocaleString('en-GB')}.`);
   };
   flagChange('Items on thin evidence', f.thinCount, previous.thinCount);
   flagChange('Stale items', f.staleCount, previous.staleCount);

@@ -12,6 +12,7 @@ import type {
   PortfolioDigestData,
   ProduceDigestsResult,
 } from '../../../shared/schemas/digests.schema';
+import { countOf } from '../../../shared/plural';
 import type { CategoryFigures, ResolvedParameters } from '../../../shared/scoring';
 import { renderCategoryDigest } from '../../../templates/pdf/category-digest';
 import { renderPortfolioDigest } from '../../../templates/pdf/portfolio-digest';
@@ -186,7 +187,7 @@ export function portfolioStory(categories: CategoryDigestData[]): string[] {
   const reviews = categories.reduce((s, c) => s + c.figures.reviewCount, 0);
   const items = categories.reduce((s, c) => s + c.figures.itemCount, 0);
   lines.push(
-    `${categories.length} categories, ${items.toLocaleString('en-GB')} items and ${reviews.toLocaleString('en-GB')} reviews this week.`,
+    `${countOf(categories.length, 'category', 'categories')}, ${countOf(items, 'item')} and ${countOf(reviews, 'review')} this week.`,
   );
   const withRho = categories.filter((c) => c.figures.spearmanRho !== null);
   const lowest = [...withRho].sort((a, b) => a.figures.spearmanRho! - b.figures.spearmanRho!)[0];
@@ -204,7 +205,7 @@ export function portfolioStory(categories: CategoryDigestData[]): string[] {
   const stale = categories.reduce((s, c) => s + c.figures.staleCount, 0);
   if (stale)
     lines.push(
-      `${stale} items across the portfolio have had no new review for longer than their category allows.`,
+      `${countOf(stale, 'item', 'items')} across the portfolio ${stale === 1 ? 'has' : 'have'} had no new review for longer than their category allows.`,
     );
   return lines;
 }
@@ -277,7 +278,7 @@ function portfolioSummary(data: PortfolioDigestData): DigestSummary {
       name: c.category.name,
       slug: c.category.slug,
       url: c.webUrl,
-      line: `rho ${c.figures.spearmanRho === null ? 'n/a' : c.figures.spearmanRho.toFixed(3)} · ${c.figures.topOverlap.shared} of top ${c.figures.topOverlap.depth} shared · ${c.figures.thinCount} thin · ${c.figures.staleCount} stale · ${c.figures.negativeClusterCount} clusters`,
+      line: `rho ${c.figures.spearmanRho === null ? 'n/a' : c.figures.spearmanRho.toFixed(3)} · ${c.figures.topOverlap.shared} of top ${c.figures.topOverlap.depth} shared · ${c.figures.thinCount} thin · ${c.figures.staleCount} stale · ${countOf(c.figures.negativeClusterCount, 'cluster')}`,
     })),
   };
 }
@@ -372,13 +373,15 @@ export async function produceDigests(options: ProduceOptions): Promise<ProduceDi
     );
     result.digests.push({ id, kind: 'category', category: data.category.slug });
     log(
-      `Digest of ${data.category.name} for ${options.isoWeek}: ${rendered.pages} pages, ${rendered.pdf.length} bytes.`,
+      `Digest of ${data.category.name} for ${options.isoWeek}: ${countOf(rendered.pages, 'page')}, ${countOf(rendered.pdf.length, 'byte')}.`,
     );
     if (options.mail !== false) {
       const recipients = await categoryRecipients(categoryId, extra);
       const queued = await queueDeliveries(id, categoryTarget(categoryId), recipients, now);
       result.queued += queued;
-      log(`Queued ${queued} mail(s) of ${data.category.name} (${recipients.length} subscriber(s)).`);
+      log(
+        `Queued ${countOf(queued, 'mail')} of ${data.category.name} (${countOf(recipients.length, 'recipient')}).`,
+      );
     }
   }
 
@@ -399,11 +402,11 @@ export async function produceDigests(options: ProduceOptions): Promise<ProduceDi
       const rendered = await renderPortfolioDigest(data, paper);
       const id = await store('portfolio', 0, options.isoWeek, paper, rendered, portfolioSummary(data), now);
       result.digests.push({ id, kind: 'portfolio', category: null });
-      log(`Portfolio digest for ${options.isoWeek}: ${rendered.pages} pages.`);
+      log(`Portfolio digest for ${options.isoWeek}: ${countOf(rendered.pages, 'page')}.`);
       if (options.mail !== false) {
         const queued = await queueDeliveries(id, portfolioTarget, await portfolioRecipients(), now);
         result.queued += queued;
-        log(`Queued ${queued} portfolio mail(s).`);
+        log(`Queued ${countOf(queued, 'portfolio mail')}.`);
       }
     }
   }

@@ -1,6 +1,7 @@
 import nodemailer, { type SendMailOptions, type Transporter } from 'nodemailer';
 import { Op } from 'sequelize';
-import type { DigestSummary } from '../../../shared/schemas/digests.schema';
+import { countOf } from '../../../shared/plural';
+import type { DigestKind, DigestSummary } from '../../../shared/schemas/digests.schema';
 import { renderDigestMail } from '../../../templates/mail/render';
 import { loadConfig, type Config } from '../../config/env';
 import { Category, Digest, MailDelivery } from '../../db/models';
@@ -54,6 +55,13 @@ function weekRange(summary: DigestSummary): string {
   return `${fmt(summary.weekStart)} to ${fmt(summary.weekEnd)}`;
 }
 
+/** What the attached PDF holds, in the words of its own pages; the mail promises nothing more. */
+export function attachmentContents(kind: DigestKind, categoryCount: number): string {
+  if (kind === 'category')
+    return 'the drift chart, every flagged item, the full standings and the parameters used';
+  return `a page comparing the ${countOf(categoryCount, 'category', 'categories')}, then one page per category with its key figures, drift chart, smoothed top five, items worth a look and changes since last week. Each category's full standings and parameters are in its own digest`;
+}
+
 export type ComposedMail = SendMailOptions & { messageId: string };
 
 /** The mail of one delivery: HTML and plain text from templates/mail, the PDF attached, a signed unsubscribe link. */
@@ -83,7 +91,8 @@ export async function composeDeliveryMail(
     weekRange: weekRange(summary),
     preheader: summary.headline[0] ?? summary.title,
     fileName,
-    pageCount: digest.pageCount,
+    pages: countOf(digest.pageCount, 'page'),
+    contents: attachmentContents(digest.kind, summary.categories.length),
     recipient: delivery.recipient,
     targetLabel,
     unsubscribeUrl,

@@ -5,8 +5,10 @@ import { demoStory } from '../../../server/demo/scenario';
 import {
   loadCategoryDigestData,
   loadPortfolioDigestData,
+  portfolioStory,
   produceDigests,
 } from '../../../server/modules/digests/digests.service';
+import { buildStory } from '../../../server/modules/digests/digest-story';
 import { renderCategoryDigest } from '../../../templates/pdf/category-digest';
 import { renderPortfolioDigest } from '../../../templates/pdf/portfolio-digest';
 import { testDemoAsOf } from '../../helpers/demo-data';
@@ -154,6 +156,49 @@ describe('portfolio digest PDF', () => {
       expect(text[i + 1]).toContain(c.category.name);
       expect(text[i + 1]).toContain(c.figures.spearmanRho!.toFixed(3));
     }
+  });
+});
+
+describe('portfolio digest PDF, long lists and counts of one', () => {
+  it('keeps the largest rise and fall, says how many changes it left out and counts one category right', async () => {
+    const data = await loadPortfolioDigestData(week, null, testDemoAsOf);
+    const d = data.categories.find((c) => c.category.slug === 'portable-power')!;
+    const prev = d.previous!;
+    // A week with many changes: a top ten that turned over, every flag count moved, a rise and a fall.
+    const [a, b] = d.items;
+    d.figures = {
+      ...d.figures,
+      movers: [
+        { sku: a!.sku, naiveMovement: 3, smoothedMovement: 7 },
+        { sku: b!.sku, naiveMovement: -2, smoothedMovement: -9 },
+      ],
+    };
+    d.previous = {
+      ...prev,
+      topTen: ['NOT-IN-TOP-TEN'],
+      thinCount: d.figures.thinCount + 1,
+      staleCount: d.figures.staleCount + 1,
+      clusterCount: d.figures.negativeClusterCount + 1,
+    };
+    d.story = buildStory({ figures: d.figures, params: d.params, items: d.items, previous: d.previous });
+    const changes = d.story.changes;
+    expect(changes.length).toBeGreaterThan(6);
+    const one = { ...data, categories: [d], story: portfolioStory([d]) };
+    const { pdf } = await renderPortfolioDigest(one, 'A4');
+    saveArtefacts('portfolio-long-changes', pdf, 2);
+    const [cover, page] = (await pdfPages(pdf)).map((t) => t.replace(/\s+/g, ' '));
+    expect(cover).toContain('· 1 category');
+    expect(cover).not.toMatch(/\b1 categories\b/);
+    expect(cover).toContain('1 category, ');
+    expect(page).toContain(`Biggest rise by smoothed score: ${a!.sku}`);
+    expect(page).toContain(`Biggest fall: ${b!.sku}`);
+    expect(page).toContain('down 9 places');
+    expect(page).toContain(
+      `And ${changes.length - 4} more changes: the full list is in the Portable Power digest.`,
+    );
+    // the category digest itself lists every change
+    const full = (await pdfPages((await renderCategoryDigest(d, 'A4')).pdf)).join(' ').replace(/\s+/g, ' ');
+    for (const line of changes) expect(full).toContain(line.replace(/\s+/g, ' ').slice(0, 40));
   });
 });
 

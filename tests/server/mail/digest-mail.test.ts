@@ -1,3 +1,5 @@
+import { mkdirSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
 import { simpleParser, type ParsedMail } from 'mailparser';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { lastCompletedIsoWeek } from '../../../shared/iso-week';
@@ -151,6 +153,41 @@ describe('digest mail through the local SMTP server', () => {
       .post('/api/unsubscribe')
       .send({ token: `${token.split('.')[0]}.forgedforgedforged` })
       .expect(400);
+  });
+
+  it('describes only what the portfolio PDF holds and counts clusters, pages and mails right', async () => {
+    const mails = await received();
+    const portfolio = mails.find((m) => m.row.envelopeTo[0] === exec)!.mail;
+    mkdirSync(path.resolve('test-results', 'digests'), { recursive: true });
+    writeFileSync(path.resolve('test-results', 'digests', 'portfolio-mail.txt'), portfolio.text!);
+    const [attachment] = portfolio.attachments;
+    const pages = await pdfPages(attachment!.content);
+    const pdfText = pages.join(' ');
+    // The portfolio PDF has no standings table and no parameters page; the mail must not promise them.
+    expect(pdfText).not.toContain('Full standings');
+    expect(pdfText).not.toContain('Methods and parameters');
+    for (const body of [portfolio.text!, portfolio.html as string]) {
+      const flat = body.replace(/\s+/g, ' ').replace(/&#x27;/g, "'");
+      expect(flat).not.toContain('the full standings and the parameters used');
+      expect(flat).toContain(`(${pages.length} pages)`);
+      expect(flat).toContain('one page per category with its key figures, drift chart, smoothed top five');
+      expect(flat).toContain("Each category's full standings and parameters are in its own digest");
+    }
+    // Portable Power has the demo's one negative cluster: "1 cluster", never "1 clusters".
+    const ppSnapshot = (await Snapshot.findOne({
+      where: {
+        isoWeek: week,
+        categoryId: (await Category.findOne({ where: { slug: 'portable-power' } }))!.id,
+      },
+    }))!;
+    expect(ppSnapshot.clusterCount).toBe(1);
+    expect(portfolio.text).toMatch(/Portable Power: [^\n]*· 1 cluster\n/);
+    expect(portfolio.text).not.toMatch(/\b1 clusters\b/);
+    // The job log of a run that queues nothing new says so in words, not "mail(s)".
+    const log: string[] = [];
+    await produceDigests({ isoWeek: week, portfolio: true, now: testDemoAsOf, log: (l) => log.push(l) });
+    expect(log.some((l) => l.startsWith('Queued 0 mails of Portable Power'))).toBe(true);
+    expect(log.join('\n')).not.toMatch(/\(s\)/);
   });
 
   it('lets the manager subscribe again from the web app', async () => {

@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { lastCompletedIsoWeek } from '../../../../shared/iso-week';
+import { countOf } from '../../../../shared/plural';
 import { jobStatuses, jobTriggerLabels, type JobStatus } from '../../../../shared/schemas/jobs.schema';
 import { RouteError } from '../../../components/errors/route-error';
 import { WidgetBoundary } from '../../../components/errors/widget-boundary';
@@ -66,7 +67,7 @@ export function Component() {
           <div className="flex items-center gap-3">
             {jobs.data && jobs.data.active > 0 ? (
               <span role="status" className="text-sm text-ink-500">
-                {jobs.data.active} run{jobs.data.active === 1 ? '' : 's'} in progress — updating
+                {countOf(jobs.data.active, 'run')} in progress — updating
               </span>
             ) : null}
             <Button

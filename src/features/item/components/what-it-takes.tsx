@@ -1,4 +1,5 @@
 import { useId, useState } from 'react';
+import { countOf } from '../../../../shared/plural';
 import { reviewsToPass } from '../../../../shared/scoring';
 import type { ItemDetail } from '../../../../shared/schemas/standings.schema';
 
@@ -17,7 +18,7 @@ export function WhatItTakes({ current }: { current: NonNullable<ItemDetail['curr
     answer =
       k === null
         ? `No number of ${v}-star reviews is enough: ${v} is not above ${above.sku}'s smoothed score of ${above.smoothed.toFixed(3)}.`
-        : `${k} new ${v}-star review${k === 1 ? '' : 's'} would lift it above ${above.sku} (smoothed ${above.smoothed.toFixed(3)}).`;
+        : `${countOf(k, `new ${v}-star review`)} would lift it above ${above.sku} (smoothed ${above.smoothed.toFixed(3)}).`;
   }
   return (
     <div>

@@ -1,6 +1,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useId } from 'react';
 import { useForm } from 'react-hook-form';
+import { countOf } from '../../../../shared/plural';
 import type { CategorySummary } from '../../../../shared/auth';
 import {
   backfillInputSchema,
@@ -111,8 +112,7 @@ export function BackfillForm({
         </Button>
         {queue.isSuccess ? (
           <span role="status" className="text-sm text-ink-700">
-            Queued {queue.data.runs.length} run{queue.data.runs.length === 1 ? '' : 's'}; progress shows in
-            the history below.
+            Queued {countOf(queue.data.runs.length, 'run')}; progress shows in the history below.
           </span>
         ) : null}
         {queue.isError ? (

@@ -1,4 +1,5 @@
 import { Link } from 'react-router-dom';
+import { countOf } from '../../../../shared/plural';
 import type { PortfolioEntry } from '../../../../shared/schemas/standings.schema';
 import { chartColours } from '../../../components/charts/chart-setup';
 import { Sparkline } from '../../../components/charts/sparkline';
@@ -53,7 +54,7 @@ export function PortfolioCard({ entry, asOfWeek }: { entry: PortfolioEntry; asOf
         </h2>
         <p id={`week-${entry.slug}`} className="text-xs text-ink-500">
           {latest
-            ? `${latest.isoWeek} · ${latest.itemCount} items · ${latest.reviewCount.toLocaleString()} reviews`
+            ? `${latest.isoWeek} · ${countOf(latest.itemCount, 'item')} · ${countOf(latest.reviewCount, 'review')}`
             : 'No weekly snapshot yet'}
         </p>
       </header>

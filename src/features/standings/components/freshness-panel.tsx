@@ -1,5 +1,6 @@
 import { Bar } from 'react-chartjs-2';
 import { Link } from 'react-router-dom';
+import { countOf } from '../../../../shared/plural';
 import { chartColours } from '../../../components/charts/chart-setup';
 import { EmptyState, ErrorPanel, Loading } from '../../../components/ui/status';
 import { fmt } from '../../../lib/format';
@@ -21,12 +22,12 @@ export function FreshnessPanel({ slug, week }: { slug: string; week: string | un
         </h3>
         <p className="text-sm text-ink-500">
           Items count as stale after {staleFrom} days without a review.
-          {f.unknownAge > 0 ? ` ${f.unknownAge} items have no review dates.` : ''}
+          {f.unknownAge > 0 ? ` ${countOf(f.unknownAge, 'item has', 'items have')} no review dates.` : ''}
         </p>
         <div
           className="mt-3 h-64"
           role="img"
-          aria-label={f.buckets.map((b) => `${b.label}: ${b.count} items`).join('; ')}
+          aria-label={f.buckets.map((b) => `${b.label}: ${countOf(b.count, 'item')}`).join('; ')}
         >
           <Bar
             data={{

@@ -9,6 +9,7 @@ import {
   type ScoreResult,
   type ScoringSettings,
 } from '../../../../shared/scoring';
+import { countOf } from '../../../../shared/plural';
 import type { ScoringSettingsInput } from '../../../../shared/schemas/standings.schema';
 import { DriftScatter } from '../../../components/charts/drift-scatter';
 import { Button } from '../../../components/ui/button';
@@ -441,7 +442,7 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
                       <td className="px-3 py-1.5">
                         <span className="flex gap-1">
                           {r.stale ? <FlagBadge flag="stale" reason={r.staleReason} /> : null}
-                          {r.thin ? <FlagBadge flag="thin" reason={`${r.n} reviews`} /> : null}
+                          {r.thin ? <FlagBadge flag="thin" reason={countOf(r.n, 'review')} /> : null}
                           {r.negativeCluster ? <FlagBadge flag="cluster" reason={r.clusterReason} /> : null}
                         </span>
                       </td>
