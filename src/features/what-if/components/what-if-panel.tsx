@@ -106,6 +106,7 @@ function Field({ label, hint, children }: { label: string; hint?: string; childr
 
 const inputClass = 'mt-1 w-full rounded-md border border-ink-200 bg-white px-2 py-1.5 font-mono text-sm';
 const PAGE = 25;
+const count = (n: number) => n.toLocaleString('en-GB');
 
 /**
  * The saved side shows the snapshot as taken; when the evidence before the cut-off has changed since, the
@@ -262,8 +263,8 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
         ['Prior mean C', fmt.num(savedParams.C, 3), fmt.num(p.resolved.C, 3)],
         ['Kendall τ-b', fmt.num(savedWeek.kendallTauB, 3), fmt.num(p.category.kendallTauB, 3)],
         ['Mean |drift|', fmt.num(savedWeek.meanAbsDrift, 1), fmt.num(p.category.meanAbsDrift, 1)],
-        ['Items', String(savedWeek.itemCount), String(p.category.itemCount)],
-        ['Reviews', String(savedWeek.reviewCount), String(p.category.reviewCount)],
+        ['Items', count(savedWeek.itemCount), count(p.category.itemCount)],
+        ['Reviews', count(savedWeek.reviewCount), count(p.category.reviewCount)],
         [
           'Stale items',
           String(Math.round(savedWeek.staleShare * savedWeek.itemCount)),
