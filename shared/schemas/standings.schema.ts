@@ -270,6 +270,23 @@ export const whatIfEvidenceSchema = z.object({
   previous: z
     .array(z.object({ sku: z.string(), naiveRank: z.number(), smoothedRank: z.number() }))
     .nullable(),
+  /** The week's standings as the stored snapshot holds them: the what-if's "saved" side. */
+  saved: z.object({
+    week: weekSummarySchema,
+    rows: z.array(
+      z.object({ sku: z.string(), n: z.number(), naiveRank: z.number(), smoothedRank: z.number() }),
+    ),
+  }),
+  /** How today's evidence before the cut-off differs from what the snapshot was taken from. */
+  evidenceChange: z.object({
+    changed: z.boolean(),
+    /** Reviews dated before the cut-off that were stored after the snapshot was taken. */
+    lateReviews: z.number().int(),
+    itemCountNow: z.number().int(),
+    reviewCountNow: z.number().int(),
+  }),
+  /** Whether the caller may recompute the snapshot (POST /api/jobs/backfill with replace). */
+  canRecompute: z.boolean(),
 });
 export type WhatIfEvidence = z.infer<typeof whatIfEvidenceSchema>;
 

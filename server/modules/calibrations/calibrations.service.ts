@@ -11,9 +11,11 @@ import { getWhatIfEvidence } from '../standings/what-if.service';
  */
 export async function runCalibration(actor: Actor, input: CalibrationRequest): Promise<CalibrationResponse> {
   const category = await categoryForActor(actor, input.category);
-  const evidence = await getWhatIfEvidence(category, { week: input.week } as Parameters<
-    typeof getWhatIfEvidence
-  >[1]);
+  const evidence = await getWhatIfEvidence(
+    category,
+    { week: input.week } as Parameters<typeof getWhatIfEvidence>[1],
+    actor,
+  );
   const distinct = [...new Set(input.observed)];
   const result = await runInWorker<CalibrationResult>({
     kind: 'calibrate',

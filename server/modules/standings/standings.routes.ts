@@ -120,7 +120,7 @@ export const standingsRoutes = [
     access: read,
     query: whatIfQuerySchema,
     response: whatIfEvidenceSchema,
-    handler: (req, _res, { query }) => getWhatIfEvidence(req.category!, query),
+    handler: (req, _res, { query }) => getWhatIfEvidence(req.category!, query, req.actor!),
   }),
   route({
     method: 'get',

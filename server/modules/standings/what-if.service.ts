@@ -8,6 +8,7 @@ import type {
   WhatIfEvidence,
   WhatIfQuery,
 } from '../../../shared/schemas/standings.schema';
+import { evidenceBeforeSql } from '../../../shared/iso-week';
 import { inUserWords } from '../../../shared/vocabulary';
 import { CalibrationNote as CalibrationNoteModel, Category } from '../../db/models';
 import { db } from '../../db/sequelize';
@@ -32,7 +33,11 @@ async function storedSettings(
  * browser can re-score them with the same engine the snapshot job used. A changed half-life changes the
  * decay sums, which only SQL can recompute: the browser asks again with it.
  */
-export async function getWhatIfEvidence(category: CategoryRef, query: WhatIfQuery): Promise<WhatIfEvidence> {
+export async function getWhatIfEvidence(
+  category: CategoryRef,
+  query: WhatIfQuery,
+  actor: Actor,
+): Promise<WhatIfEvidence> {
   const snapshot = await findWeek(category, query.week);
   const { stored } = await storedSettings(category);
   const settings: ScoringSettings = {
@@ -49,7 +54,46 @@ export async function getWhatIfEvidence(category: CategoryRef, query: WhatIfQuer
       type: QueryTypes.SELECT,
     },
   );
+  const savedRows = await db().query<{ sku: string; n: number; naive_rank: number; smoothed_rank: number }>(
+    `SELECT i.sku, sr.n, sr.naive_rank, sr.smoothed_rank FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
+     WHERE sr.snapshot_id = :id ORDER BY sr.smoothed_rank, i.sku`,
+    { replacements: { id: snapshot.id }, type: QueryTypes.SELECT },
+  );
+  const [late] = await db().query<{ late: number }>(
+    `SELECT COUNT(*) AS late FROM reviews r JOIN items i ON i.id = r.item_id
+     WHERE i.category_id = :categoryId AND ${evidenceBeforeSql('r.reviewed_at')} AND r.created_at > :takenAt`,
+    {
+      replacements: {
+        categoryId: category.id,
+        cutoff: snapshot.cutoff,
+        takenAt: new Date(snapshot.summary.takenAt),
+      },
+      type: QueryTypes.SELECT,
+    },
+  );
+  const lateReviews = Number(late?.late ?? 0);
+  const itemCountNow = evidence.items.length;
+  const reviewCountNow = evidence.items.reduce((sum, item) => sum + item.n, 0);
   return {
+    saved: {
+      week: snapshot.summary,
+      rows: savedRows.map((r) => ({
+        sku: r.sku,
+        n: Number(r.n),
+        naiveRank: Number(r.naive_rank),
+        smoothedRank: Number(r.smoothed_rank),
+      })),
+    },
+    evidenceChange: {
+      changed:
+        lateReviews > 0 ||
+        itemCountNow !== snapshot.summary.itemCount ||
+        reviewCountNow !== snapshot.summary.reviewCount,
+      lateReviews,
+      itemCountNow,
+      reviewCountNow,
+    },
+    canRecompute: actor.role === 'ops' || actor.role === 'admin',
     isoWeek: snapshot.summary.isoWeek,
     asOf: snapshot.cutoff.toISOString(),
     settings: settings as unknown as Record<string, unknown>,

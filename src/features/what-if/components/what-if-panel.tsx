@@ -19,6 +19,9 @@ import { fmt } from '../../../lib/format';
 import { useCategorySettings } from '../api/get-category-settings';
 import { useUpdateCategorySettings } from '../api/update-category-settings';
 import { useWhatIfEvidence } from '../api/get-what-if-evidence';
+import { useQueueBackfill } from '../../jobs/api/queue-backfill';
+import { countOf } from '../../../../shared/plural';
+import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
 
 const weightLabels: Record<PriorWeightStrategy, string> = {
   mean: 'Mean review count per item',
@@ -104,6 +107,78 @@ function Field({ label, hint, children }: { label: string; hint?: string; childr
 
 const inputClass = 'mt-1 w-full rounded-md border border-ink-200 bg-white px-2 py-1.5 font-mono text-sm';
 const PAGE = 25;
+const count = (n: number) => n.toLocaleString('en-GB');
+
+/**
+ * The saved side shows the snapshot as taken; when the evidence before the cut-off has changed since, the
+ * preview (today's evidence) and the saved side no longer share their input, and the reader must know.
+ */
+function EvidenceChangedBanner(props: {
+  slug: string;
+  isoWeek: string;
+  takenAt: string;
+  change: WhatIfEvidence['evidenceChange'];
+  savedItems: number;
+  savedReviews: number;
+  canRecompute: boolean;
+}) {
+  const recompute = useQueueBackfill();
+  const { change } = props;
+  const details: string[] = [];
+  if (change.lateReviews > 0)
+    details.push(
+      `${countOf(change.lateReviews, 'review')} dated before the cut-off arrived after it was taken`,
+    );
+  if (change.reviewCountNow !== props.savedReviews)
+    details.push(
+      `the week now has ${countOf(change.reviewCountNow, 'review')} instead of ${props.savedReviews.toLocaleString('en-GB')}`,
+    );
+  if (change.itemCountNow !== props.savedItems)
+    details.push(
+      `${countOf(change.itemCountNow, 'item')} instead of ${props.savedItems.toLocaleString('en-GB')}`,
+    );
+  return (
+    <div
+      role="status"
+      data-testid="what-if-evidence-changed"
+      className="rounded-lg border border-brass-300 bg-brass-100 p-4 text-sm text-ink-800"
+    >
+      <p className="font-semibold text-ink-900">
+        The evidence for {props.isoWeek} has changed since its snapshot was taken.
+      </p>
+      <p className="mt-1">
+        The saved side shows the standings of {props.isoWeek} as taken on {fmt.dateTime(props.takenAt)}; the
+        preview uses today&apos;s evidence: {details.join('; ')}.
+      </p>
+      {props.canRecompute ? (
+        <div className="mt-2 flex flex-wrap items-center gap-3">
+          <Button
+            type="button"
+            disabled={recompute.isPending || recompute.isSuccess}
+            onClick={() =>
+              recompute.mutate({
+                category: props.slug,
+                fromWeek: props.isoWeek,
+                toWeek: props.isoWeek,
+                replace: true,
+              })
+            }
+          >
+            Recompute {props.isoWeek}
+          </Button>
+          {recompute.isSuccess ? (
+            <span aria-live="polite">
+              Recompute queued. <Link to="/jobs">The job history</Link> shows when it is done.
+            </span>
+          ) : null}
+          {recompute.isError ? <span className="text-red-700">{errorMessage(recompute.error)}</span> : null}
+        </div>
+      ) : (
+        <p className="mt-1 text-ink-600">Operations staff or an administrator can recompute the snapshot.</p>
+      )}
+    </div>
+  );
+}
 
 /**
  * Re-scores the week's evidence in the browser with the same engine the weekly job runs, so a change of
@@ -158,14 +233,15 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
     setPage(1);
     setSaved(null);
   };
-  const base = baseline.result;
-  const before = new Map(base.items.map((r) => [r.sku, r]));
+  // The saved side is the week's stored standings, so it equals what the standings page shows for the week.
+  const savedSide = evidence.data!.saved;
+  const before = new Map(savedSide.rows.map((r) => [r.sku, r]));
   const rows = preview.ok
     ? [...preview.result.items]
         .sort((a, b) => a.smoothedPosition - b.smoothedPosition)
         .map((r) => {
-          const was = before.get(r.sku)!;
-          return { r, was: was.smoothedRank, move: was.smoothedRank - r.smoothedRank };
+          const was = before.get(r.sku)?.smoothedRank ?? null;
+          return { r, was, move: was === null ? 0 : was - r.smoothedRank };
         })
     : [];
   const movers = [...rows]
@@ -178,15 +254,28 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
   const shown = rows.slice((page - 1) * PAGE, page * PAGE);
   const p = preview.ok ? preview.result : null;
   const changed = JSON.stringify(changeFrom(draftFrom(effective))) !== changeKey;
+  const savedWeek = savedSide.week;
+  const savedParams = evidence.data!.resolved as { m: number; C: number };
+  const drift = evidence.data!.evidenceChange;
 
   const figures: [string, string, string][] = p
     ? [
-        ['Prior weight m', fmt.num(base.resolved.m, 1), fmt.num(p.resolved.m, 1)],
-        ['Prior mean C', fmt.num(base.resolved.C, 3), fmt.num(p.resolved.C, 3)],
-        ['Kendall τ-b', fmt.num(base.category.kendallTauB, 3), fmt.num(p.category.kendallTauB, 3)],
-        ['Mean |drift|', fmt.num(base.category.meanAbsDrift, 1), fmt.num(p.category.meanAbsDrift, 1)],
-        ['Stale items', String(base.category.staleCount), String(p.category.staleCount)],
-        ['Thin items', String(base.category.thinCount), String(p.category.thinCount)],
+        ['Prior weight m', fmt.num(savedParams.m, 1), fmt.num(p.resolved.m, 1)],
+        ['Prior mean C', fmt.num(savedParams.C, 3), fmt.num(p.resolved.C, 3)],
+        ['Kendall τ-b', fmt.num(savedWeek.kendallTauB, 3), fmt.num(p.category.kendallTauB, 3)],
+        ['Mean |drift|', fmt.num(savedWeek.meanAbsDrift, 1), fmt.num(p.category.meanAbsDrift, 1)],
+        ['Items', count(savedWeek.itemCount), count(p.category.itemCount)],
+        ['Reviews', count(savedWeek.reviewCount), count(p.category.reviewCount)],
+        [
+          'Stale items',
+          String(Math.round(savedWeek.staleShare * savedWeek.itemCount)),
+          String(p.category.staleCount),
+        ],
+        [
+          'Thin items',
+          String(Math.round(savedWeek.thinShare * savedWeek.itemCount)),
+          String(p.category.thinCount),
+        ],
       ]
     : [];
 
@@ -328,6 +417,18 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
       </form>
 
       <div className="min-w-0 space-y-6">
+        {drift.changed ? (
+          <EvidenceChangedBanner
+            slug={slug}
+            isoWeek={savedWeek.isoWeek}
+            takenAt={savedWeek.takenAt}
+            change={drift}
+            savedItems={savedWeek.itemCount}
+            savedReviews={savedWeek.reviewCount}
+            canRecompute={evidence.data!.canRecompute}
+          />
+        ) : null}
+
         {p ? (
           <section
             aria-labelledby="what-if-figures"
@@ -418,7 +519,7 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
                       className={`border-t border-ink-50 ${highlighted.has(r.sku) ? 'bg-brass-100/70' : ''}`}
                     >
                       <td className="px-3 py-1.5 text-right font-mono font-semibold">{r.smoothedRank}</td>
-                      <td className="px-3 py-1.5 text-right font-mono text-ink-500">{was}</td>
+                      <td className="px-3 py-1.5 text-right font-mono text-ink-500">{was ?? '—'}</td>
                       <td
                         className={`px-3 py-1.5 text-right font-mono font-semibold ${move > 0 ? 'text-kelp-500' : move < 0 ? 'text-coral-500' : 'text-ink-300'}`}
                       >
