@@ -20,7 +20,6 @@ import { useCategorySettings } from '../api/get-category-settings';
 import { useUpdateCategorySettings } from '../api/update-category-settings';
 import { useWhatIfEvidence } from '../api/get-what-if-evidence';
 import { useQueueBackfill } from '../../jobs/api/queue-backfill';
-import { countOf } from '../../../../shared/plural';
 import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
 
 const weightLabels: Record<PriorWeightStrategy, string> = {
