@@ -13,6 +13,7 @@ import { bearerAuth } from './middleware/bearer-auth';
 import { errorHandler, notFoundApi } from './middleware/error-handler';
 import { configurePassport } from './modules/auth/passport';
 import { throttleSessionTouch } from './modules/auth/session-touch';
+import { SqlThrottleStore } from './modules/auth/sql-throttle-store';
 import { apiRoutes, buildApiRouter } from './modules/registry';
 
 export type AppDeps = { config: Config; sequelize: Sequelize };
@@ -107,6 +108,7 @@ export function createApp({ config, sequelize }: AppDeps): Express {
       windowMs: config.login.windowMinutes * 60_000,
       limit: config.login.maxAttempts * 3,
       skipSuccessfulRequests: true,
+      store: new SqlThrottleStore(sequelize, 'sign-in'),
       standardHeaders: 'draft-8',
       legacyHeaders: false,
       handler: (_req, res) => {

@@ -38,3 +38,9 @@ export const createdTokenSchema = z.object({
   secret: z.string(),
 });
 export type CreatedToken = z.infer<typeof createdTokenSchema>;
+
+/** Hands a token to another active administrator, who answers for it from then on. */
+export const reassignTokenSchema = z.object({
+  userId: z.number({ error: 'Choose the administrator who takes the token over.' }).int().positive(),
+});
+export type ReassignTokenInput = z.infer<typeof reassignTokenSchema>;

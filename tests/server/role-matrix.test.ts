@@ -46,6 +46,7 @@ const expected: Record<string, Allowed> = {
   'GET /api/admin/tokens': ['admin'],
   'POST /api/admin/tokens': ['admin'],
   'DELETE /api/admin/tokens/:id': ['admin'],
+  'PUT /api/admin/tokens/:id/owner': ['admin'],
   'GET /api/portfolio': 'signed-in',
   'GET /api/categories/:slug/weeks': 'signed-in',
   'GET /api/categories/:slug/standings': 'signed-in',

@@ -18,6 +18,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare failedLogins: CreationOptional<number>;
   declare lockedUntil: Date | null;
   declare lastLoginAt: Date | null;
+  /** Raised when credentials change; sessions signed in under an older value end. */
+  declare credentialVersion: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -33,6 +35,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         failedLogins: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 0 },
         lockedUntil: { type: DataTypes.DATE, allowNull: true },
         lastLoginAt: { type: DataTypes.DATE, allowNull: true },
+        credentialVersion: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 0 },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

@@ -14,11 +14,14 @@ export async function hashPassword(password: string): Promise<string> {
   return bcrypt.hash(password, 10);
 }
 
-export async function loadActor(userId: number): Promise<Actor | null> {
+async function loadUser(userId: number): Promise<User | null> {
   const user = await User.findByPk(userId, {
     include: [{ model: Category, as: 'ownedCategories', attributes: ['id'], through: { attributes: [] } }],
   });
-  if (!user || !user.active) return null;
+  return user && user.active ? user : null;
+}
+
+function toActor(user: User): Actor {
   const owned = (user as User & { ownedCategories?: Category[] }).ownedCategories ?? [];
   return {
     kind: 'user',
@@ -28,6 +31,31 @@ export async function loadActor(userId: number): Promise<Actor | null> {
     role: user.role,
     categoryIds: user.role === 'manager' ? owned.map((c) => c.id).sort((a, b) => a - b) : null,
   };
+}
+
+export async function loadActor(userId: number): Promise<Actor | null> {
+  const user = await loadUser(userId);
+  return user ? toActor(user) : null;
+}
+
+/** What a session stores: the user and the credential version it was signed in under. */
+export type SessionUser = { id: number; v: number };
+
+export async function sessionUserFor(userId: number): Promise<SessionUser> {
+  const user = await User.findByPk(userId, { attributes: ['credentialVersion'] });
+  if (!user) throw AppError.unauthenticated('Sign in again.');
+  return { id: userId, v: user.credentialVersion };
+}
+
+/**
+ * The actor of a session, or null when the session has ended: user gone or disabled, or credentials changed
+ * since it was signed in. Sessions from before credential versions (a bare id) count as version 0.
+ */
+export async function loadSessionActor(stored: SessionUser | number): Promise<Actor | null> {
+  const { id, v } = typeof stored === 'number' ? { id: stored, v: 0 } : stored;
+  const user = await loadUser(id);
+  if (!user || user.credentialVersion !== v) return null;
+  return toActor(user);
 }
 
 async function refuseLocked(email: string, lockedUntil: Date, now: Date, ip?: string): Promise<never> {

@@ -3,9 +3,15 @@ import { Strategy as LocalStrategy } from 'passport-local';
 import { signInSchema } from '../../../shared/auth';
 import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
-import { loadActor, verifyCredentials, type LockoutPolicy } from './auth.service';
+import {
+  loadSessionActor,
+  sessionUserFor,
+  verifyCredentials,
+  type LockoutPolicy,
+  type SessionUser,
+} from './auth.service';
 
-/** Configures passport: e-mail + password sign-in, and the session holding only the user id. */
+/** Configures passport: e-mail + password sign-in, and the session holding the user id and credential version. */
 export function configurePassport(policy: LockoutPolicy): passport.PassportStatic {
   passport.use(
     new LocalStrategy({ usernameField: 'email', passReqToCallback: true }, (req, email, password, done) => {
@@ -20,9 +26,14 @@ export function configurePassport(policy: LockoutPolicy): passport.PassportStati
       );
     }),
   );
-  passport.serializeUser((user, done) => done(null, (user as Actor).id));
-  passport.deserializeUser((id: number, done) => {
-    loadActor(id).then(
+  passport.serializeUser((user, done) => {
+    sessionUserFor((user as Actor).id).then(
+      (stored) => done(null, stored),
+      (err: unknown) => done(err),
+    );
+  });
+  passport.deserializeUser((stored: SessionUser | number, done) => {
+    loadSessionActor(stored).then(
       (actor) => done(null, actor ?? false),
       (err: unknown) => done(err),
     );

@@ -1,8 +1,13 @@
 import { z } from 'zod';
-import { apiTokenSchema, createdTokenSchema, createTokenSchema } from '../../../shared/schemas/tokens.schema';
+import {
+  apiTokenSchema,
+  createdTokenSchema,
+  createTokenSchema,
+  reassignTokenSchema,
+} from '../../../shared/schemas/tokens.schema';
 import { AppError } from '../../lib/app-error';
 import { access, route } from '../../lib/route';
-import { createToken, listTokens, revokeToken } from './tokens.service';
+import { createToken, listTokens, reassignToken, revokeToken } from './tokens.service';
 
 const admin = access.roles(['admin']);
 
@@ -41,5 +46,15 @@ export const tokenRoutes = [
     access: admin,
     response: apiTokenSchema,
     handler: (req) => revokeToken(tokenId(req.params.id), req.actor!, req.ip),
+  }),
+  route({
+    method: 'put',
+    path: '/api/admin/tokens/:id/owner',
+    tag: 'admin',
+    summary: 'Hand an API token to another active administrator',
+    access: admin,
+    body: reassignTokenSchema,
+    response: apiTokenSchema,
+    handler: (req, _res, { body }) => reassignToken(tokenId(req.params.id), body, req.actor!, req.ip),
   }),
 ];

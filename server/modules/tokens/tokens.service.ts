@@ -6,6 +6,7 @@ import {
   type ApiTokenRecord,
   type CreatedToken,
   type CreateTokenInput,
+  type ReassignTokenInput,
   type TokenRole,
 } from '../../../shared/schemas/tokens.schema';
 import { ApiToken, Category, User } from '../../db/models';
@@ -105,6 +106,34 @@ export async function revokeToken(id: number, actor: Actor, ip?: string): Promis
   return record!;
 }
 
+/** Hands a token to another active administrator; the token keeps its secret, role and categories. */
+export async function reassignToken(
+  id: number,
+  input: ReassignTokenInput,
+  actor: Actor,
+  ip?: string,
+): Promise<ApiTokenRecord> {
+  const token = await ApiToken.findByPk(id);
+  if (!token) throw AppError.notFound('The token');
+  if (token.revokedAt)
+    throw new AppError('conflict', 'This token is revoked; it cannot be handed to anyone.', 409);
+  const target = await User.findByPk(input.userId, { attributes: ['id', 'role', 'active', 'email'] });
+  if (!target || !target.active || target.role !== 'admin')
+    throw new AppError('bad_request', 'A token can only be handed to an active administrator.', 400);
+  const from = token.createdBy;
+  await token.update({ createdBy: target.id });
+  await recordAudit({
+    actor,
+    action: 'token.reassigned',
+    targetType: 'api_token',
+    targetId: token.id,
+    details: { name: token.name, prefix: token.prefix, fromUserId: from, toUserId: target.id },
+    ip,
+  });
+  const [record] = await toRecords([token]);
+  return record!;
+}
+
 /** The caller behind an `Authorization: Bearer` secret; 401 for an unknown or revoked token. */
 export async function authenticateToken(secret: string): Promise<Actor> {
   if (!secret.startsWith(tokenSecretPrefix))
@@ -120,6 +149,15 @@ export async function authenticateToken(secret: string): Promise<Actor> {
     throw AppError.unauthenticated(
       `This API token (${token.prefix}…) was revoked on ${token.revokedAt.toISOString().slice(0, 10)}. Ask an administrator for a new one.`,
     );
+  // A token stops while the administrator who answers for it is disabled, and works again on re-enabling;
+  // revoking is the way to end it for good. Tokens made from the command line have no creator.
+  if (token.createdBy !== null) {
+    const creator = await User.findByPk(token.createdBy, { attributes: ['active'] });
+    if (!creator?.active)
+      throw AppError.unauthenticated(
+        `This API token (${token.prefix}…) is stopped because the person who created it is disabled. Ask an administrator to hand it to another administrator, or for a new one.`,
+      );
+  }
   const now = new Date();
   if (!token.lastUsedAt || now.getTime() - token.lastUsedAt.getTime() >= lastUsedEveryMs) {
     await ApiToken.update(

@@ -87,6 +87,8 @@ export async function updateUser(
     changes.failedLogins = 0;
   }
   await user.update(changes);
+  // A new password or disabling ends every session of the user: each request compares this version.
+  if (input.password !== undefined || input.active === false) await user.increment('credentialVersion');
   await recordAudit({
     actor,
     action: 'user.updated',

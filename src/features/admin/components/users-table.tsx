@@ -4,6 +4,11 @@ import { roleCodes, roleLabels, type RoleCode } from '../../../../shared/auth';
 import { errorMessage } from '../../../components/ui/status';
 import { useUpdateUser } from '../api/update-user';
 
+/** Said before disabling, because the server ends sessions and stops tokens at once. */
+function disableWarning(name: string): string {
+  return `Disable ${name}? They are signed out on every device now, and re-enabling does not sign them back in. API tokens they created stop working until they are enabled again or you hand the tokens to another administrator on the tokens page.`;
+}
+
 export function UsersTable({ users, selfId }: { users: UserRecord[]; selfId: number }) {
   const update = useUpdateUser();
   return (
@@ -58,7 +63,11 @@ export function UsersTable({ users, selfId }: { users: UserRecord[]; selfId: num
                       type="checkbox"
                       checked={user.active}
                       disabled={user.id === selfId || update.isPending}
-                      onChange={(e) => update.mutate({ id: user.id, active: e.target.checked })}
+                      onChange={(e) => {
+                        const active = e.target.checked;
+                        if (!active && !window.confirm(disableWarning(user.name))) return;
+                        update.mutate({ id: user.id, active });
+                      }}
                     />
                     Active
                   </label>
