@@ -14,6 +14,7 @@ import { errorHandler, notFoundApi } from './middleware/error-handler';
 import { configurePassport } from './modules/auth/passport';
 import { throttleSessionTouch } from './modules/auth/session-touch';
 import { apiRoutes, buildApiRouter } from './modules/registry';
+import { configureWorkers } from './workers/pool';
 
 export type AppDeps = { config: Config; sequelize: Sequelize };
 
@@ -29,6 +30,7 @@ function sessionSecret(config: Config): string {
 export function createApp({ config, sequelize }: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
+  configureWorkers(config.heavy);
   if (config.trustProxy) app.set('trust proxy', 1);
 
   app.use(
