@@ -5,7 +5,7 @@ import {
   type ItemInput,
   type ScoringSettings,
 } from '../../shared/scoring';
-import type { ScoreRequest } from '../../shared/schemas/score.schema';
+import { SCORE_PAGE_MAX, type ScoreRequest } from '../../shared/schemas/score.schema';
 
 export interface CalibrateTask {
   kind: 'calibrate';
@@ -22,12 +22,27 @@ export interface ScoreTask {
   now: string;
 }
 
+export type ScorePage = ReturnType<typeof scoreRequest> & {
+  page: { offset: number; limit: number; total: number };
+};
+
+/** Only the asked-for page leaves the worker, so the event loop never holds 200,000 item results. */
+function scorePage(task: ScoreTask): ScorePage {
+  const result = scoreRequest(task.request, new Date(task.now));
+  const offset = task.request.offset ?? 0;
+  const limit = task.request.limit ?? SCORE_PAGE_MAX;
+  return {
+    ...result,
+    items: result.items.slice(offset, offset + limit),
+    page: { offset, limit, total: result.items.length },
+  };
+}
+
 export type WorkerTask = CalibrateTask | ScoreTask;
 
 /** An input error crosses the thread boundary as plain data; the service turns it back into a 400. */
 export type ScoreOutcome =
-  | { ok: true; result: ReturnType<typeof scoreRequest> }
-  | { ok: false; path: string; reason: string; message: string };
+  { ok: true; result: ScorePage } | { ok: false; path: string; reason: string; message: string };
 
 /** Runs in a worker thread: the CPU-heavy part only, plain data in and out. */
 export default function runTask(task: WorkerTask) {
@@ -36,7 +51,7 @@ export default function runTask(task: WorkerTask) {
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
     case 'score':
       try {
-        return { ok: true, result: scoreRequest(task.request, new Date(task.now)) } satisfies ScoreOutcome;
+        return { ok: true, result: scorePage(task) } satisfies ScoreOutcome;
       } catch (err) {
         if (err instanceof ScoringInputError)
           return {

@@ -1,19 +1,19 @@
 import type { ScoreRequest } from '../../../shared/schemas/score.schema';
-import type { ScoreResult } from '../../../shared/scoring';
 import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
 import { runInWorker, withHeavySlot } from '../../workers/pool';
-import type { ScoreOutcome } from '../../workers/tasks';
+import type { ScoreOutcome, ScorePage } from '../../workers/tasks';
 
 /**
  * Scores items sent by a caller with the shared engine in a worker thread, so a 200,000-item request
- * never holds the event loop; an invalid input is a 400 naming the field.
+ * never holds the event loop, and answers one page of at most SCORE_PAGE_MAX items (offset/limit);
+ * an invalid input is a 400 naming the field.
  */
 export async function scoreItems(
   actor: Actor,
   request: ScoreRequest,
   now: Date = new Date(),
-): Promise<ScoreResult> {
+): Promise<ScorePage> {
   const outcome = await withHeavySlot(actor, () =>
     runInWorker<ScoreOutcome>({ kind: 'score', request, now: now.toISOString() }),
   );

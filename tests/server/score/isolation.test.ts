@@ -63,7 +63,26 @@ describe('heavy requests and everyone else', () => {
     expect(health.body.heavy.running).toBe(1);
     const res = await heavy.response;
     expect(res.status).toBe(200);
-    expect(res.body.items).toHaveLength(200_000);
+    // The answer is one page of at most 10,000 items (SCORE_PAGE_MAX), whatever the request's size.
+    expect(res.body.items).toHaveLength(10_000);
+    expect(res.body.page).toEqual({ offset: 0, limit: 10_000, total: 200_000 });
+  });
+
+  it('pages the scored items with offset and limit, the same items as the whole answer', async () => {
+    const three = { items: [...smallBody.items, { sku: 'C', count: 40, mean: 3.2 }] };
+    const post = (body: object) =>
+      analyst.post('/api/score').set('x-csrf-token', analyst.csrf).send(body).expect(200);
+    const whole = await post(three);
+    const page = await post({ ...three, offset: 1, limit: 1 });
+    expect(page.body.page).toEqual({ offset: 1, limit: 1, total: 3 });
+    expect(page.body.items).toEqual([whole.body.items[1]]);
+    expect(page.body.category).toEqual(whole.body.category);
+    const tooMany = await analyst
+      .post('/api/score')
+      .set('x-csrf-token', analyst.csrf)
+      .send({ ...three, limit: 10_001 })
+      .expect(400);
+    expect(tooMany.body.error.message).toMatch(/at most 10000/);
   });
 
   it('answers 429 with Retry-After past one caller’s limit, and 503 with Retry-After when the pool is full', async () => {
