@@ -26,11 +26,14 @@ export type ScorePage = ReturnType<typeof scoreRequest> & {
   page: { offset: number; limit: number; total: number };
 };
 
-/** Only the asked-for page leaves the worker, so the event loop never holds 200,000 item results. */
-function scorePage(task: ScoreTask): ScorePage {
-  const result = scoreRequest(task.request, new Date(task.now));
-  const offset = task.request.offset ?? 0;
-  const limit = task.request.limit ?? SCORE_PAGE_MAX;
+/**
+ * Only the asked-for page leaves the worker, so the event loop never holds 200,000 item results; the
+ * command line uses the same rule, so it prints the same JSON as the API.
+ */
+export function scorePage(request: ScoreRequest, now: Date): ScorePage {
+  const result = scoreRequest(request, now);
+  const offset = request.offset ?? 0;
+  const limit = request.limit ?? SCORE_PAGE_MAX;
   return {
     ...result,
     items: result.items.slice(offset, offset + limit),
@@ -51,7 +54,7 @@ export default function runTask(task: WorkerTask) {
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
     case 'score':
       try {
-        return { ok: true, result: scorePage(task) } satisfies ScoreOutcome;
+        return { ok: true, result: scorePage(task.request, new Date(task.now)) } satisfies ScoreOutcome;
       } catch (err) {
         if (err instanceof ScoringInputError)
           return {
