@@ -15,6 +15,7 @@ import { configurePassport } from './modules/auth/passport';
 import { throttleSessionTouch } from './modules/auth/session-touch';
 import { SqlThrottleStore } from './modules/auth/sql-throttle-store';
 import { apiRoutes, buildApiRouter } from './modules/registry';
+import { configureWorkers } from './workers/pool';
 
 export type AppDeps = { config: Config; sequelize: Sequelize };
 
@@ -30,6 +31,7 @@ function sessionSecret(config: Config): string {
 export function createApp({ config, sequelize }: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
+  configureWorkers(config.heavy);
   if (config.trustProxy) app.set('trust proxy', 1);
 
   app.use(

@@ -1,3 +1,4 @@
+import os from 'node:os';
 import path from 'node:path';
 import { z } from 'zod';
 
@@ -32,6 +33,9 @@ const envSchema = z.object({
   BALLAST_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(2525),
   DIGEST_PAPER: z.enum(['A4', 'LETTER', 'a4', 'letter']).default('A4'),
   UNSUBSCRIBE_SECRET: z.string().min(16).optional(),
+  BALLAST_WORKERS: z.coerce.number().int().min(1).max(64).optional(),
+  BALLAST_WORKER_QUEUE: z.coerce.number().int().min(0).max(1000).default(8),
+  BALLAST_HEAVY_PER_PRINCIPAL: z.coerce.number().int().min(1).max(100).default(2),
 });
 
 export type Env = z.infer<typeof envSchema>;
@@ -71,6 +75,14 @@ export type Config = {
     unsubscribeSecret: string;
   };
   digestPaper: 'A4' | 'LETTER';
+  heavy: {
+    /** Worker threads for CPU-heavy requests; one core stays with the event loop. */
+    workers: number;
+    /** Tasks waiting for a worker beyond which Ballast answers 503. */
+    maxQueue: number;
+    /** Heavy requests one user or one token may have in flight; the next is a 429. */
+    perPrincipal: number;
+  };
   /** Load the invented demo scenario; on by default only with the embedded database. */
   demo: boolean;
   rootDir: string;
@@ -115,6 +127,11 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       unsubscribeSecret: e.UNSUBSCRIBE_SECRET ?? e.SESSION_SECRET ?? 'ballast-development-unsubscribe-secret',
     },
     digestPaper: e.DIGEST_PAPER.toUpperCase() as 'A4' | 'LETTER',
+    heavy: {
+      workers: e.BALLAST_WORKERS ?? Math.max(1, os.availableParallelism() - 1),
+      maxQueue: e.BALLAST_WORKER_QUEUE,
+      perPrincipal: e.BALLAST_HEAVY_PER_PRINCIPAL,
+    },
     demo: e.BALLAST_DEMO ?? !e.DATABASE_URL,
     importMaxBytes: e.BALLAST_IMPORT_MAX_MB * 1024 * 1024,
     heapGrowthPercent: e.BALLAST_HEAP_GROWTH_PERCENT,

@@ -6,6 +6,7 @@ export type AppErrorCode =
   | 'not_found'
   | 'conflict'
   | 'too_many_requests'
+  | 'server_busy'
   | 'account_locked'
   | 'csrf_invalid'
   | 'db_unavailable'

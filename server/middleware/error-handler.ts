@@ -90,6 +90,10 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   const { status, body } = toErrorResponse(err);
   if (status >= 500) logger.error({ err, url: req.originalUrl, method: req.method }, 'request failed');
   if (res.headersSent) return;
+  const retryAfter = (err instanceof AppError ? err.details : undefined) as
+    { retryAfterSeconds?: number } | undefined;
+  if (typeof retryAfter?.retryAfterSeconds === 'number')
+    res.set('Retry-After', String(retryAfter.retryAfterSeconds));
   res.status(status).json(body);
 };
 

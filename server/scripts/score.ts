@@ -10,7 +10,7 @@ import { extname } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { describeIssues, scoreRequestSchema } from '../../shared/schemas/score.schema';
 import { ScoringInputError } from '../../shared/scoring/errors';
-import { scoreRequest } from '../../shared/scoring/score-request';
+import { scorePage } from '../workers/tasks';
 
 class CliError extends Error {}
 
@@ -76,7 +76,7 @@ async function main(argv: string[]): Promise<void> {
     const more = issues.length > 3 ? ` (and ${issues.length - 3} more)` : '';
     throw new CliError(`${file}: ${issues.slice(0, 3).join('; ')}${more}`);
   }
-  const result = scoreRequest(parsed.data, new Date());
+  const result = scorePage(parsed.data, new Date());
   process.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
 }
 

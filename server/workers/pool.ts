@@ -1,37 +1,94 @@
+import os from 'node:os';
 import { Tinypool } from 'tinypool';
+import type { Actor } from '../lib/actor';
 import { AppError } from '../lib/app-error';
-import type { CalibrateTask } from './tasks';
+import type { WorkerTask } from './tasks';
 
 /**
- * One small pool of worker threads for CPU-heavy requests. The machine has 2 cores: one worker keeps a
- * core for the event loop; a bounded queue answers 503 rather than piling requests up in memory.
+ * One small pool of worker threads for every CPU-heavy request (scoring, calibration). The machine may
+ * have 2 cores: by default one worker fewer than the cores keeps a core for the event loop; a bounded
+ * queue answers 503 rather than piling requests up in memory.
  */
+export type HeavyLimits = { workers: number; maxQueue: number; perPrincipal: number };
+
+let limits: HeavyLimits = {
+  workers: Math.max(1, os.availableParallelism() - 1),
+  maxQueue: 8,
+  perPrincipal: 2,
+};
 let pool: Tinypool | null = null;
-const MAX_QUEUE = 8;
+const inFlight = new Map<string, number>();
+const RETRY_AFTER_SECONDS = 5;
+
+/** Called once by createApp with config.heavy; a running pool keeps its size until closed. */
+export function configureWorkers(next: HeavyLimits): void {
+  limits = next;
+}
 
 function thePool(): Tinypool {
   pool ??= new Tinypool({
     filename: new URL('./bootstrap.mjs', import.meta.url).href,
     minThreads: 0,
-    maxThreads: 1,
-    maxQueue: MAX_QUEUE,
+    maxThreads: limits.workers,
+    maxQueue: Math.max(1, limits.maxQueue),
     idleTimeout: 30_000,
   });
   return pool;
 }
 
-export async function runInWorker<T>(task: CalibrateTask): Promise<T> {
+function busy(): AppError {
+  return new AppError(
+    'server_busy',
+    'Ballast is busy with other heavy work; try again in a few seconds.',
+    503,
+    { retryAfterSeconds: RETRY_AFTER_SECONDS },
+  );
+}
+
+let pending = 0;
+
+/** What the pool holds now, for /api/health and the bench. */
+export function heavyWork(): { running: number; queued: number } {
+  const running = Math.min(pending, limits.workers);
+  return { running, queued: pending - running };
+}
+
+export async function runInWorker<T>(task: WorkerTask): Promise<T> {
   const p = thePool();
-  if (p.queueSize >= MAX_QUEUE)
+  if (pending >= limits.workers + limits.maxQueue) throw busy();
+  pending += 1;
+  try {
+    return (await p.run(task)) as T;
+  } catch (err) {
+    if (err instanceof Error && /queue is at limit/i.test(err.message)) throw busy();
+    throw err;
+  } finally {
+    pending -= 1;
+  }
+}
+
+/**
+ * Holds one of the caller's heavy-request slots while work runs: one person or one token cannot fill the
+ * pool and its queue for everyone else. The count lives in this process, per app server.
+ */
+export async function withHeavySlot<T>(actor: Actor, work: () => Promise<T>): Promise<T> {
+  const key = `${actor.kind}:${actor.id}`;
+  const held = inFlight.get(key) ?? 0;
+  if (held >= limits.perPrincipal)
     throw new AppError(
       'too_many_requests',
-      'Ballast is busy with other heavy work; try again shortly.',
-      503,
-      {
-        retryAfterSeconds: 5,
-      },
+      `You already have ${held} heavy requests running; wait for one to finish, then try again.`,
+      429,
+      { retryAfterSeconds: RETRY_AFTER_SECONDS },
     );
-  return (await p.run(task)) as T;
+  inFlight.set(key, held + 1);
+  try {
+    return await work();
+  } finally {
+    const left = (inFlight.get(key) ?? 1) - 1;
+    if (left > 0) inFlight.set(key, left);
+    else inFlight.delete(key);
+  }
 }
 
 export async function closeWorkers(): Promise<void> {

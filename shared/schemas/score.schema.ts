@@ -140,6 +140,9 @@ export const previousRankingEntrySchema = z.object({
   smoothedRank: count.min(1, 'must be 1 or more'),
 });
 
+/** Most scored items one answer of POST /api/score carries (about 9 MB of JSON); the rest are pages. */
+export const SCORE_PAGE_MAX = 10_000;
+
 export const scoreRequestSchema = z
   .object({
     items: z
@@ -149,6 +152,13 @@ export const scoreRequestSchema = z
     settings: scoringSettingsSchema.optional(),
     asOf: isoDateSchema.optional(),
     previous: z.array(previousRankingEntrySchema).optional(),
+    offset: z.number().int('must be a whole number').min(0, 'must be 0 or more').optional(),
+    limit: z
+      .number()
+      .int('must be a whole number')
+      .min(1, 'must be 1 or more')
+      .max(SCORE_PAGE_MAX, `must be at most ${SCORE_PAGE_MAX}`)
+      .optional(),
   })
   .superRefine((req, ctx) => {
     const seen = new Map<string, number>();
@@ -270,6 +280,10 @@ export const scoreResponseSchema = z.strictObject({
   items: z.array(itemResultSchema),
   category: categoryFiguresSchema,
   resolved: resolvedParametersSchema,
+  /** Which slice of the scored items this answer holds; the API always says, the command gives all. */
+  page: z
+    .strictObject({ offset: z.number().int(), limit: z.number().int(), total: z.number().int() })
+    .optional(),
 });
 
 export type ScoreResponse = z.infer<typeof scoreResponseSchema>;

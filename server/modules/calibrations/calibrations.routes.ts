@@ -3,6 +3,7 @@ import {
   calibrationResponseSchema,
 } from '../../../shared/schemas/calibration.schema';
 import { route } from '../../lib/route';
+import { withHeavySlot } from '../../workers/pool';
 import { runCalibration } from './calibrations.service';
 
 export const calibrationRoutes = [
@@ -15,6 +16,6 @@ export const calibrationRoutes = [
     access: { kind: 'roles', roles: 'any', tokens: true },
     body: calibrationRequestSchema,
     response: calibrationResponseSchema,
-    handler: (req, _res, { body }) => runCalibration(req.actor!, body),
+    handler: (req, _res, { body }) => withHeavySlot(req.actor!, () => runCalibration(req.actor!, body)),
   }),
 ];

@@ -14,6 +14,7 @@ export const healthRoutes = [
       status: z.enum(['ok', 'degraded']),
       db: z.enum(['up', 'down']),
       reason: z.string().optional(),
+      heavy: z.object({ running: z.number().int(), queued: z.number().int() }),
     }),
     handler: async (_req, res) => {
       const health = await checkHealth();

@@ -12,6 +12,6 @@ export const scoreRoutes = [
     access: access.roles(['admin', 'ops', 'manager', 'analyst', 'exec'], { tokens: true }),
     body: scoreRequestSchema,
     response: scoreResponseSchema,
-    handler: (_req, _res, { body }) => scoreItems(body),
+    handler: (req, _res, { body }) => scoreItems(req.actor!, body),
   }),
 ];

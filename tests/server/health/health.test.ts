@@ -12,7 +12,7 @@ describe('GET /api/health', () => {
   it('answers 200 with the database up', async () => {
     const agent = await t.anonymous();
     const res = await agent.get('/api/health').expect(200);
-    expect(res.body).toEqual({ status: 'ok', db: 'up' });
+    expect(res.body).toEqual({ status: 'ok', db: 'up', heavy: { running: 0, queued: 0 } });
   });
 
   it('answers 503 with a reason when the database does not answer, and 200 again when it does', async () => {

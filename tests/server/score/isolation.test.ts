@@ -1,0 +1,112 @@
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { setupTestApp, type Agent, type TestApp } from '../../helpers/test-app';
+
+// One worker, no waiting room and one heavy request per caller, so every limit is reached on purpose.
+let t: TestApp;
+let analyst: Agent;
+let manager: Agent;
+beforeAll(async () => {
+  t = await setupTestApp({
+    BALLAST_WORKERS: '1',
+    BALLAST_WORKER_QUEUE: '0',
+    BALLAST_HEAVY_PER_PRINCIPAL: '1',
+  });
+  analyst = await t.signIn('analyst');
+  manager = await t.signIn('manager');
+});
+afterAll(async () => t.close());
+
+/** The documented maximum of POST /api/score: 200,000 items (shared/schemas/score.schema.ts). */
+const maxBody = {
+  items: Array.from({ length: 200_000 }, (_, i) => ({
+    sku: `s${i}`,
+    count: (i * 7919) % 500,
+    mean: 1 + ((i * 104_729) % 400) / 100,
+  })),
+};
+const smallBody = {
+  items: [
+    { sku: 'A', count: 12, mean: 4.5 },
+    { sku: 'B', count: 300, mean: 4.1 },
+  ],
+};
+
+type Heavy = { running: number; queued: number } | undefined;
+const heavyNow = async (): Promise<Heavy> =>
+  ((await request(t.app).get('/api/health')).body as { heavy?: Heavy }).heavy;
+
+/** Starts a maximum-size score request and resolves once the server reports it running in a worker. */
+async function startHeavy(agent: Agent) {
+  const state = { done: false };
+  const response = agent
+    .post('/api/score')
+    .set('x-csrf-token', agent.csrf)
+    .send(maxBody)
+    .then((res) => {
+      state.done = true;
+      return res;
+    });
+  for (;;) {
+    if (state.done) throw new Error('the score request ended before any health request saw it running');
+    if (((await heavyNow())?.running ?? 0) >= 1) break;
+    await new Promise((resolve) => setTimeout(resolve, 25));
+  }
+  return { state, response };
+}
+
+describe('heavy requests and everyone else', () => {
+  it('answers /api/health sent after a maximum-size score request started before that request ends', async () => {
+    const heavy = await startHeavy(analyst);
+    const health = await request(t.app).get('/api/health').expect(200);
+    expect(heavy.state.done).toBe(false);
+    expect(health.body.heavy.running).toBe(1);
+    const res = await heavy.response;
+    expect(res.status).toBe(200);
+    // The answer is one page of at most 10,000 items (SCORE_PAGE_MAX), whatever the request's size.
+    expect(res.body.items).toHaveLength(10_000);
+    expect(res.body.page).toEqual({ offset: 0, limit: 10_000, total: 200_000 });
+  });
+
+  it('pages the scored items with offset and limit, the same items as the whole answer', async () => {
+    const three = { items: [...smallBody.items, { sku: 'C', count: 40, mean: 3.2 }] };
+    const post = (body: object) =>
+      analyst.post('/api/score').set('x-csrf-token', analyst.csrf).send(body).expect(200);
+    const whole = await post(three);
+    const page = await post({ ...three, offset: 1, limit: 1 });
+    expect(page.body.page).toEqual({ offset: 1, limit: 1, total: 3 });
+    expect(page.body.items).toEqual([whole.body.items[1]]);
+    expect(page.body.category).toEqual(whole.body.category);
+    const tooMany = await analyst
+      .post('/api/score')
+      .set('x-csrf-token', analyst.csrf)
+      .send({ ...three, limit: 10_001 })
+      .expect(400);
+    expect(tooMany.body.error.message).toMatch(/at most 10000/);
+  });
+
+  it('answers 429 with Retry-After past one caller’s limit, and 503 with Retry-After when the pool is full', async () => {
+    const heavy = await startHeavy(analyst);
+
+    const again = await analyst.post('/api/score').set('x-csrf-token', analyst.csrf).send(smallBody);
+    expect(again.status).toBe(429);
+    expect(Number(again.headers['retry-after'])).toBeGreaterThan(0);
+    expect(again.body.error.code).toBe('too_many_requests');
+    expect(again.body.error.message).toMatch(/heavy requests running/);
+
+    // Another person is not held to the analyst's limit, but the one worker is busy and nothing may wait.
+    const other = await manager.post('/api/score').set('x-csrf-token', manager.csrf).send(smallBody);
+    expect(other.status).toBe(503);
+    expect(Number(other.headers['retry-after'])).toBeGreaterThan(0);
+    expect(other.body.error.code).toBe('server_busy');
+
+    expect((await heavy.response).status).toBe(200);
+    const after = await analyst
+      .post('/api/score')
+      .set('x-csrf-token', analyst.csrf)
+      .send(smallBody)
+      .expect(200);
+    expect(after.body.items).toHaveLength(2);
+    expect(await heavyNow()).toEqual({ running: 0, queued: 0 });
+  });
+});
