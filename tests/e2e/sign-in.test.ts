@@ -103,11 +103,13 @@ describe('signing in through the browser', () => {
       await page.getByRole('heading', { name: 'Desk Lighting' }).waitFor();
       await context.clearCookies();
       await page.goto(`${server.url}/categories/desk-lighting`);
-      await page.getByText(ended).waitFor();
+      // Generous bounds: on a loaded CI machine the redirect after the 401 can be slow; the condition is fixed.
+      await page.waitForURL(/[?&]ended=1/, { timeout: 90_000 });
+      await page.getByText(ended).waitFor({ timeout: 90_000 });
       await page.screenshot({ path: path.join(screenshotDir, `sign-in-session-ended-${width}.png`) });
       await context.close();
     }
-  });
+  }, 300_000);
 
   it('shows a 404 page for an unknown address, and a clear refusal for a category that is not yours', async () => {
     const manager = demoAccounts.find((a) => a.role === 'manager')!;
