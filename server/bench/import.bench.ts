@@ -12,9 +12,11 @@ import { freePort } from '../lib/free-port';
 
 /*
  * Ballast's review importer end to end (stream parse, validation, item look-up, batched upserts, progress)
- * on a generated 1,000,000-row file, against MariaDB's own LOAD DATA LOCAL INFILE of the same file into a
- * bare table without indexes, on the same throw-away server. The importer runs in a child process so that
- * its peak memory is its own.
+ * on a generated 1,000,000-row file, against MariaDB's own LOAD DATA LOCAL INFILE of the same file on the
+ * same throw-away server, twice: into a bare table without indexes (the old yardstick), and into a table
+ * created LIKE reviews, so with the indexes and the unique key the importer maintains, its item ids looked
+ * up from items by category and sku in the SET clause as the importer looks them up (the fair limit, issue
+ * 20 point 3). The importer runs in a child process so that its peak memory is its own.
  */
 
 const asOf = new Date('2026-11-30T00:00:00Z');
@@ -131,7 +133,34 @@ async function freshDatabase(url: string, name: string): Promise<string> {
   return u.toString();
 }
 
-async function loadDataInfile(url: string, files: string[]): Promise<{ seconds: number; rows: number }> {
+type LoadTarget = 'bare' | 'like_reviews';
+
+/** The LOAD DATA statement for one piece; the column list and SET clause turn CSV cells into columns. */
+function loadStatement(target: LoadTarget): string {
+  const format = `CHARACTER SET utf8mb4
+         FIELDS TERMINATED BY ',' OPTIONALLY ENCLOSED BY '"' ESCAPED BY ''
+         LINES TERMINATED BY '\\n' IGNORE 1 LINES`;
+  if (target === 'bare') return `LOAD DATA LOCAL INFILE ? INTO TABLE bare_reviews ${format}`;
+  // The same conversions the importer makes: empty cells are NULL, ISO times in UTC, true/false.
+  return `LOAD DATA LOCAL INFILE ? INTO TABLE like_reviews ${format}
+         (@review_id, @sku, @title, @category, stars, @reviewed_at, helpful_yes, helpful_no, @reviewer_id,
+          @reviewer_score, @verified, @text)
+         SET item_id = (SELECT i.id FROM items i JOIN categories c ON c.id = i.category_id
+                        WHERE c.slug = @category AND i.sku = @sku),
+             external_id = @review_id,
+             reviewed_at = STR_TO_DATE(@reviewed_at, '%Y-%m-%dT%H:%i:%sZ'),
+             reviewer_external_id = NULLIF(@reviewer_id, ''),
+             reviewer_score = NULLIF(@reviewer_score, ''),
+             verified = CASE @verified WHEN 'true' THEN 1 WHEN 'false' THEN 0 ELSE NULL END,
+             body = NULLIF(@text, ''),
+             import_batch_id = NULL, created_at = UTC_TIMESTAMP(), updated_at = UTC_TIMESTAMP()`;
+}
+
+async function loadDataInfile(
+  url: string,
+  files: string[],
+  target: LoadTarget,
+): Promise<{ seconds: number; rows: number }> {
   const u = new URL(url);
   const options = {
     host: u.hostname,
@@ -153,23 +182,30 @@ async function loadDataInfile(url: string, files: string[]): Promise<{ seconds: 
     permitLocalInfile: true,
   });
   try {
-    await conn.query(`CREATE TABLE bare_reviews (
+    if (target === 'bare')
+      await conn.query(`CREATE TABLE bare_reviews (
       review_id VARCHAR(128), sku VARCHAR(64), title VARCHAR(500), category VARCHAR(64), stars TINYINT,
       reviewed_at VARCHAR(40), helpful_yes INT, helpful_no INT, reviewer_id VARCHAR(128),
       reviewer_score DECIMAL(4,3), verified VARCHAR(5), text TEXT
     ) ENGINE=InnoDB DEFAULT CHARSET=utf8mb4`);
+    // LIKE copies the columns, the primary key, the unique key (item, external id) and every index.
+    else await conn.query('CREATE TABLE like_reviews LIKE reviews');
     let seconds = 0;
     let rows = 0;
     for (const file of files) {
       const started = process.hrtime.bigint();
-      const result = (await conn.query(
-        `LOAD DATA LOCAL INFILE ? INTO TABLE bare_reviews CHARACTER SET utf8mb4
-         FIELDS TERMINATED BY ',' OPTIONALLY ENCLOSED BY '"' ESCAPED BY ''
-         LINES TERMINATED BY '\\n' IGNORE 1 LINES`,
-        [file],
-      )) as { affectedRows: number };
+      const result = (await conn.query(loadStatement(target), [file])) as { affectedRows: number };
       seconds += Number(process.hrtime.bigint() - started) / 1e9;
       rows += Number(result.affectedRows);
+    }
+    if (target === 'like_reviews') {
+      const [check] = (await conn.query(
+        'SELECT COUNT(*) AS n, SUM(item_id IS NULL OR item_id = 0) AS unmatched FROM like_reviews',
+      )) as { n: bigint; unmatched: string | null }[];
+      if (Number(check!.unmatched ?? 0) > 0)
+        throw new Error(
+          `LOAD DATA left ${check!.unmatched} reviews without an item; the comparison is void.`,
+        );
     }
     return { seconds, rows };
   } finally {
@@ -203,16 +239,28 @@ export async function run({
     const importer = await runChild(db.url, file, nodeFlags);
     if (importer.status !== 'succeeded' || importer.rowsInserted !== rowCount)
       throw new Error(`The importer did not import every row: ${JSON.stringify(importer)}`);
-    const loadData = await loadDataInfile(db.url, await writePieces(dir, rowCount));
+    const pieces = await writePieces(dir, rowCount);
+    const bare = await loadDataInfile(db.url, pieces, 'bare');
+    const fair = await loadDataInfile(db.url, pieces, 'like_reviews');
     const importRate = importer.rowsRead / importer.seconds;
-    const loadRate = loadData.rows / loadData.seconds;
+    const bareRate = bare.rows / bare.seconds;
+    const fairRate = fair.rows / fair.seconds;
     console.log(
       `Ballast importer:      ${Math.round(importRate).toLocaleString('en')} rows/s (${importer.rowsRead.toLocaleString('en')} rows in ${importer.seconds.toFixed(1)} s)`,
     );
     console.log(
-      `LOAD DATA LOCAL INFILE: ${Math.round(loadRate).toLocaleString('en')} rows/s (${loadData.rows.toLocaleString('en')} rows in ${loadData.seconds.toFixed(1)} s, bare table)`,
+      `LOAD DATA LOCAL INFILE: ${Math.round(fairRate).toLocaleString('en')} rows/s (${fair.rows.toLocaleString('en')} rows in ${fair.seconds.toFixed(1)} s, table LIKE reviews: same indexes and unique key, item ids looked up)`,
     );
-    console.log(`ratio importer / LOAD DATA: ${(importRate / loadRate).toFixed(2)} (aim: at least 0.5)`);
+    console.log(
+      `LOAD DATA LOCAL INFILE: ${Math.round(bareRate).toLocaleString('en')} rows/s (${bare.rows.toLocaleString('en')} rows in ${bare.seconds.toFixed(1)} s, bare table without indexes)`,
+    );
+    console.log(
+      `ratio importer / LOAD DATA into a table LIKE reviews: ${(importRate / fairRate).toFixed(2)} (aim: at least 0.5)`,
+    );
+    console.log(
+      `ratio importer / LOAD DATA into a bare table: ${(importRate / bareRate).toFixed(2)} (no aim; the old yardstick)`,
+    );
+    const loadRate = fairRate;
     const mb = (bytes: number) => `${(bytes / 1024 / 1024).toFixed(0)} MB`;
     console.log(
       `importer peak RSS: ${mb(importer.peakRss)} (aim: under 300 MB; peak JS heap ${mb(importer.peakHeap)})`,
