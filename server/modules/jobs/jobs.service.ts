@@ -167,6 +167,26 @@ export async function categoriesFor(categoryIds: number[] | null): Promise<numbe
   return rows.map((c) => c.id);
 }
 
+/**
+ * On a Galera cluster two app servers may insert the same claim on different nodes at once; both commit
+ * locally and the loser's commit fails certification, reported as a deadlock (1213). That is a claim lost
+ * to another server, like a duplicate key on a single server, not an error.
+ */
+export function isCertificationConflict(err: unknown): boolean {
+  for (
+    let e = err as { errno?: unknown; parent?: unknown; original?: unknown } | null, i = 0;
+    e && i < 4;
+    i++
+  ) {
+    if (e.errno === 1213) return true;
+    e = (e.parent ?? e.original ?? null) as typeof e;
+  }
+  return false;
+}
+
+/** Tries of one claim that keeps failing certification before it counts as an error. */
+const claimAttempts = 5;
+
 export type DueClaim = {
   scheduleId: number;
   dueAt: Date;
@@ -188,35 +208,47 @@ export async function claimDueRuns(claim: DueClaim): Promise<number[]> {
   const isoWeek = lastCompletedIsoWeek(claim.dueAt);
   const claimed: number[] = [];
   for (const categoryId of categoryIds) {
-    try {
-      const run = await JobRun.create({
-        scheduleId: schedule.id,
-        kind: 'snapshot',
-        categoryId,
-        isoWeek,
-        dueAt: claim.dueAt,
-        trigger: claim.trigger,
-        params: { asOf: claim.dueAt.toISOString(), then },
-        retryOf: null,
-        createdBy: `schedule: ${schedule.name}`,
-        owner: claim.owner,
-        heartbeatAt: claim.now,
-      });
-      claimed.push(run.id);
-    } catch (err) {
-      if (err instanceof UniqueConstraintError) continue;
-      throw err;
+    // A certification conflict is usually another server's claim of the same run, but it may also be a
+    // write on a row this insert only refers to (the schedule); trying again settles which: a duplicate
+    // key then says the run is taken, success that it was free.
+    for (let attempt = 1; ; attempt++) {
+      try {
+        const run = await JobRun.create({
+          scheduleId: schedule.id,
+          kind: 'snapshot',
+          categoryId,
+          isoWeek,
+          dueAt: claim.dueAt,
+          trigger: claim.trigger,
+          params: { asOf: claim.dueAt.toISOString(), then },
+          retryOf: null,
+          createdBy: `schedule: ${schedule.name}`,
+          owner: claim.owner,
+          heartbeatAt: claim.now,
+        });
+        claimed.push(run.id);
+        break;
+      } catch (err) {
+        if (err instanceof UniqueConstraintError) break;
+        if (isCertificationConflict(err) && attempt < claimAttempts) continue;
+        throw err;
+      }
     }
   }
-  await ReportSchedule.update(
-    { lastDueAt: claim.dueAt },
-    {
-      where: {
-        id: schedule.id,
-        [Op.or]: [{ lastDueAt: null }, { lastDueAt: { [Op.lt]: claim.dueAt } }],
+  try {
+    await ReportSchedule.update(
+      { lastDueAt: claim.dueAt },
+      {
+        where: {
+          id: schedule.id,
+          [Op.or]: [{ lastDueAt: null }, { lastDueAt: { [Op.lt]: claim.dueAt } }],
+        },
       },
-    },
-  );
+    );
+  } catch (err) {
+    // Another server recorded the same (or a later) due time at the same moment on another node.
+    if (!isCertificationConflict(err)) throw err;
+  }
   return claimed;
 }
 
@@ -230,10 +262,15 @@ export async function claimQueuedRuns(owner: string, now: Date, limit = 20): Pro
   });
   const claimed: number[] = [];
   for (const { id } of candidates) {
-    const [affected] = await JobRun.update(
-      { owner, heartbeatAt: now },
-      { where: { id, status: 'queued', owner: null } },
-    );
+    let affected = 0;
+    try {
+      [affected] = await JobRun.update(
+        { owner, heartbeatAt: now },
+        { where: { id, status: 'queued', owner: null } },
+      );
+    } catch (err) {
+      if (!isCertificationConflict(err)) throw err;
+    }
     if (affected === 1) claimed.push(id);
   }
   return claimed;
