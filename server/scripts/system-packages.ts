@@ -14,6 +14,17 @@ export const testNeeds: SystemNeed[] = [
   { what: 'pdftoppm (poppler-utils)', check: ['/usr/bin/pdftoppm'], debianPackage: 'poppler-utils' },
 ];
 
+/** The Galera cluster (`npm run cluster`, `npm run drill -- cluster`): the provider and its state transfer. */
+export const clusterNeeds: SystemNeed[] = [
+  testNeeds[0]!,
+  {
+    what: 'Galera 4 (wsrep provider)',
+    check: ['/usr/lib/galera/libgalera_smm.so'],
+    debianPackage: 'galera-4',
+  },
+  { what: 'rsync (Galera state transfer)', check: ['/usr/bin/rsync'], debianPackage: 'rsync' },
+];
+
 export function missingNeeds(needs: SystemNeed[]): SystemNeed[] {
   return needs.filter((need) => !need.check.some((p) => existsSync(p)));
 }
