@@ -19,8 +19,8 @@ import { fmt } from '../../../lib/format';
 import { useCategorySettings } from '../api/get-category-settings';
 import { useUpdateCategorySettings } from '../api/update-category-settings';
 import { useWhatIfEvidence } from '../api/get-what-if-evidence';
-import { useQueueBackfill } from '../../jobs/api/queue-backfill';
 import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
+import { priorWeightApplied, standingsColumns } from '../../../../shared/vocabulary';
 
 const weightLabels: Record<PriorWeightStrategy, string> = {
   mean: 'Mean review count per item',
@@ -113,15 +113,14 @@ const count = (n: number) => n.toLocaleString('en-GB');
  * preview (today's evidence) and the saved side no longer share their input, and the reader must know.
  */
 function EvidenceChangedBanner(props: {
-  slug: string;
   isoWeek: string;
   takenAt: string;
   change: WhatIfEvidence['evidenceChange'];
   savedItems: number;
   savedReviews: number;
   canRecompute: boolean;
+  recompute: WhatIfPanelProps['recompute'];
 }) {
-  const recompute = useQueueBackfill();
   const { change } = props;
   const details: string[] = [];
   if (change.lateReviews > 0)
@@ -149,29 +148,8 @@ function EvidenceChangedBanner(props: {
         The saved side shows the standings of {props.isoWeek} as taken on {fmt.dateTime(props.takenAt)}; the
         preview uses today&apos;s evidence: {details.join('; ')}.
       </p>
-      {props.canRecompute ? (
-        <div className="mt-2 flex flex-wrap items-center gap-3">
-          <Button
-            type="button"
-            disabled={recompute.isPending || recompute.isSuccess}
-            onClick={() =>
-              recompute.mutate({
-                category: props.slug,
-                fromWeek: props.isoWeek,
-                toWeek: props.isoWeek,
-                replace: true,
-              })
-            }
-          >
-            Recompute {props.isoWeek}
-          </Button>
-          {recompute.isSuccess ? (
-            <span aria-live="polite">
-              Recompute queued. <Link to="/jobs">The job history</Link> shows when it is done.
-            </span>
-          ) : null}
-          {recompute.isError ? <span className="text-red-700">{errorMessage(recompute.error)}</span> : null}
-        </div>
+      {props.canRecompute && props.recompute ? (
+        props.recompute(props.isoWeek)
       ) : (
         <p className="mt-1 text-ink-600">Operations staff or an administrator can recompute the snapshot.</p>
       )}
@@ -179,11 +157,18 @@ function EvidenceChangedBanner(props: {
   );
 }
 
+type WhatIfPanelProps = {
+  slug: string;
+  week: string | undefined;
+  /** The recompute control for a week, composed by the page (the jobs feature owns it). */
+  recompute?: (isoWeek: string) => React.ReactNode;
+};
+
 /**
  * Re-scores the week's evidence in the browser with the same engine the weekly job runs, so a change of
  * prior or threshold shows its effect at once; saving stores the settings for the next snapshots.
  */
-export function WhatIfPanel({ slug, week }: { slug: string; week: string | undefined }) {
+export function WhatIfPanel({ slug, week, recompute }: WhatIfPanelProps) {
   const settings = useCategorySettings(slug);
   const effective = settings.data?.effective as ScoringSettings | undefined;
   const [draft, setDraft] = useState<Draft | null>(null);
@@ -254,7 +239,12 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
   const p = preview.ok ? preview.result : null;
   const changed = JSON.stringify(changeFrom(draftFrom(effective))) !== changeKey;
   const savedWeek = savedSide.week;
-  const savedParams = evidence.data!.resolved as { m: number; C: number };
+  const savedParams = evidence.data!.resolved as {
+    m: number;
+    C: number;
+    priorWeightStrategy: PriorWeightStrategy;
+    priorWeightApplied: PriorWeightStrategy;
+  };
   const drift = evidence.data!.evidenceChange;
 
   const figures: [string, string, string][] = p
@@ -418,13 +408,13 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
       <div className="min-w-0 space-y-6">
         {drift.changed ? (
           <EvidenceChangedBanner
-            slug={slug}
             isoWeek={savedWeek.isoWeek}
             takenAt={savedWeek.takenAt}
             change={drift}
             savedItems={savedWeek.itemCount}
             savedReviews={savedWeek.reviewCount}
             canRecompute={evidence.data!.canRecompute}
+            recompute={recompute}
           />
         ) : null}
 
@@ -448,6 +438,19 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
                 </div>
               ))}
             </dl>
+            <p className="mt-2 text-sm text-ink-700" data-testid="what-if-m-strategy">
+              <span className="font-semibold">{standingsColumns.priorWeightApplied.label} for m:</span>{' '}
+              <span className="text-ink-500">{priorWeightApplied(savedParams)}</span> →{' '}
+              <span
+                className={
+                  priorWeightApplied(savedParams) === priorWeightApplied(p.resolved)
+                    ? 'text-ink-800'
+                    : 'font-bold text-brass-700'
+                }
+              >
+                {priorWeightApplied(p.resolved)}
+              </span>
+            </p>
             <p className="mt-3 text-sm text-ink-700" aria-live="polite" data-testid="what-if-moved">
               {moved === 0
                 ? 'No item changes its smoothed rank with these settings.'
