@@ -1,6 +1,6 @@
 import type { CategoryDigestData, PaperSize, PortfolioDigestData } from '../../shared/schemas/digests.schema';
 import { countOf } from '../../shared/plural';
-import { priorWeightApplied } from '../../shared/vocabulary';
+import { priorWeightApplied, terms } from '../../shared/vocabulary';
 import { bullets, dash, driftChart, heading, int, longDate, note, num, table, tiles } from './blocks';
 import { Canvas } from './canvas';
 import { buriedItems, keyTiles, thinLeaders, type RenderedPdf } from './category-digest';
@@ -168,9 +168,14 @@ export async function renderPortfolioDigest(
       },
       { header: 'Items', share: 0.8, align: 'right', value: (r) => int(r.figures.itemCount) },
       { header: 'Reviews', share: 1, align: 'right', value: (r) => int(r.figures.reviewCount) },
-      { header: 'rho', share: 0.8, align: 'right', value: (r) => num(r.figures.spearmanRho, 3) },
-      { header: 'rho Δ', share: 0.8, align: 'right', style: 'mono', value: rhoChange },
-      { header: 'tau-b', share: 0.8, align: 'right', value: (r) => num(r.figures.kendallTauB, 3) },
+      {
+        header: terms.spearmanShort,
+        share: 0.8,
+        align: 'right',
+        value: (r) => num(r.figures.spearmanRho, 3),
+      },
+      { header: `${terms.spearmanShort} Δ`, share: 0.8, align: 'right', style: 'mono', value: rhoChange },
+      { header: terms.kendallShort, share: 0.8, align: 'right', value: (r) => num(r.figures.kendallTauB, 3) },
       {
         header: 'Top 10',
         share: 0.75,

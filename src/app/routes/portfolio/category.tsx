@@ -136,7 +136,7 @@ export function Component() {
               {[
                 ['Items', String(chosenWeek.itemCount)],
                 ['Reviews', chosenWeek.reviewCount.toLocaleString()],
-                ['Kendall τ-b', fmt.num(chosenWeek.kendallTauB, 3)],
+                [terms.kendall, fmt.num(chosenWeek.kendallTauB, 3)],
                 ['Mean |drift|', fmt.num(chosenWeek.meanAbsDrift, 1)],
                 ['Stale', fmt.pct(chosenWeek.staleShare)],
                 ['Thin evidence', fmt.pct(chosenWeek.thinShare)],

@@ -20,7 +20,8 @@ import { useCategorySettings } from '../api/get-category-settings';
 import { useUpdateCategorySettings } from '../api/update-category-settings';
 import { useWhatIfEvidence } from '../api/get-what-if-evidence';
 import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
-import { priorWeightApplied, standingsColumns } from '../../../../shared/vocabulary';
+import { priorWeightApplied, standingsColumns, terms } from '../../../../shared/vocabulary';
+import { movedSummary } from './moved-summary';
 
 const weightLabels: Record<PriorWeightStrategy, string> = {
   mean: 'Mean review count per item',
@@ -251,7 +252,7 @@ export function WhatIfPanel({ slug, week, recompute }: WhatIfPanelProps) {
     ? [
         ['Prior weight m', fmt.num(savedParams.m, 1), fmt.num(p.resolved.m, 1)],
         ['Prior mean C', fmt.num(savedParams.C, 3), fmt.num(p.resolved.C, 3)],
-        ['Kendall τ-b', fmt.num(savedWeek.kendallTauB, 3), fmt.num(p.category.kendallTauB, 3)],
+        [terms.kendall, fmt.num(savedWeek.kendallTauB, 3), fmt.num(p.category.kendallTauB, 3)],
         ['Mean |drift|', fmt.num(savedWeek.meanAbsDrift, 1), fmt.num(p.category.meanAbsDrift, 1)],
         ['Items', count(savedWeek.itemCount), count(p.category.itemCount)],
         ['Reviews', count(savedWeek.reviewCount), count(p.category.reviewCount)],
@@ -452,9 +453,7 @@ export function WhatIfPanel({ slug, week, recompute }: WhatIfPanelProps) {
               </span>
             </p>
             <p className="mt-3 text-sm text-ink-700" aria-live="polite" data-testid="what-if-moved">
-              {moved === 0
-                ? 'No item changes its smoothed rank with these settings.'
-                : `${moved} of ${rows.length} items change their smoothed rank; the ten that move most are marked.`}
+              {movedSummary(moved, rows.length, movers.length)}
             </p>
           </section>
         ) : null}
@@ -465,7 +464,7 @@ export function WhatIfPanel({ slug, week, recompute }: WhatIfPanelProps) {
               Drift with these settings
             </h3>
             <DriftScatter
-              title={`Preview: naive rank against smoothed rank for ${rows.length} items`}
+              title={`Preview: naive rank against smoothed rank for ${countOf(rows.length, 'item')}`}
               points={p.items.map((r) => ({
                 sku: r.sku,
                 naive: r.naiveRank,
