@@ -43,7 +43,10 @@ afterAll(async () => {
   await database.drop();
 });
 
-async function signedIn(role: 'admin' | 'ops' | 'analyst' | 'manager', width: number): Promise<Page> {
+async function signedIn(
+  role: 'admin' | 'ops' | 'analyst' | 'manager' | 'exec',
+  width: number,
+): Promise<Page> {
   const account = demoAccounts.find((a) => a.role === role)!;
   const context = await browser.newContext({ viewport: { width, height: 900 } });
   const page = await context.newPage();
@@ -91,6 +94,16 @@ async function fitsAndShoot(page: Page, name: string, width: number) {
 const widths = [1440, 390] as const;
 
 describe('every screen at 390 px and 1440 px', () => {
+  it('the start page stays within the screen for an executive', async () => {
+    for (const width of widths) {
+      const page = await signedIn('exec', width);
+      await page.getByRole('heading', { level: 1 }).waitFor();
+      await page.getByText('Rank agreement').first().waitFor();
+      await fitsAndShoot(page, 'overview', width);
+      await page.context().close();
+    }
+  });
+
   it('the drift, freshness and what-if tabs stay within the screen', async () => {
     for (const width of widths) {
       const page = await signedIn('analyst', width);
