@@ -33,6 +33,9 @@ export const standingsLabels: ReadonlySet<string> = new Set(
 export const terms = {
   spearman: "Spearman's rho",
   kendall: "Kendall's tau-b",
+  /** The short forms, for narrow table headers and chart tooltips. */
+  spearmanShort: 'rho',
+  kendallShort: 'tau-b',
   naiveRanking: 'naive rank',
   smoothedRanking: 'smoothed rank',
   drift: 'Drift = naive rank − smoothed rank',

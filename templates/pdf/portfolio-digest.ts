@@ -1,5 +1,6 @@
 import type { CategoryDigestData, PaperSize, PortfolioDigestData } from '../../shared/schemas/digests.schema';
 import { countOf } from '../../shared/plural';
+import { priorWeightApplied, terms } from '../../shared/vocabulary';
 import { bullets, dash, driftChart, heading, int, longDate, note, num, table, tiles } from './blocks';
 import { Canvas } from './canvas';
 import { buriedItems, keyTiles, thinLeaders, type RenderedPdf } from './category-digest';
@@ -100,6 +101,15 @@ function categoryPage(c: Canvas, d: CategoryDigestData): void {
     }
     c.y += 3;
   }
+  c.y += 5;
+  c.text('Scored with', x, c.y, { style: 'bold', size: 9.5 });
+  c.y += 15;
+  // The strategy that actually set m, fallbacks included, beside m as on every other page that shows m.
+  const scoredWith = `Prior weight m = ${num(d.params.m, 1)}, from the ${priorWeightApplied(d.params)}; prior mean C = ${num(d.params.C, 3)}.`;
+  for (const w of c.wrap(scoredWith, width, 'regular', 8)) {
+    c.text(w, x, c.y, { size: 8 });
+    c.y += 11;
+  }
   c.y = Math.max(c.y, chartTop + chartSize + 28);
   c.text(d.previous ? `Since ${d.previous.isoWeek}` : 'Since last week', c.left, c.y, {
     style: 'bold',
@@ -158,9 +168,14 @@ export async function renderPortfolioDigest(
       },
       { header: 'Items', share: 0.8, align: 'right', value: (r) => int(r.figures.itemCount) },
       { header: 'Reviews', share: 1, align: 'right', value: (r) => int(r.figures.reviewCount) },
-      { header: 'rho', share: 0.8, align: 'right', value: (r) => num(r.figures.spearmanRho, 3) },
-      { header: 'rho Δ', share: 0.8, align: 'right', style: 'mono', value: rhoChange },
-      { header: 'tau-b', share: 0.8, align: 'right', value: (r) => num(r.figures.kendallTauB, 3) },
+      {
+        header: terms.spearmanShort,
+        share: 0.8,
+        align: 'right',
+        value: (r) => num(r.figures.spearmanRho, 3),
+      },
+      { header: `${terms.spearmanShort} Δ`, share: 0.8, align: 'right', style: 'mono', value: rhoChange },
+      { header: terms.kendallShort, share: 0.8, align: 'right', value: (r) => num(r.figures.kendallTauB, 3) },
       {
         header: 'Top 10',
         share: 0.75,

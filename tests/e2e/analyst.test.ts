@@ -70,7 +70,7 @@ describe("the analyst's path through the screens", () => {
     await page.getByRole('heading', { name: 'Overview', level: 1 }).waitFor();
     const cards = page.getByRole('list', { name: 'Categories' }).getByRole('listitem');
     await expect.poll(() => cards.count()).toBe(5);
-    await page.getByText('Rank agreement τ-b').first().waitFor();
+    await page.getByText("Rank agreement, Kendall's tau-b").first().waitFor();
     await shot(page, 'portfolio.png');
 
     await page.getByRole('link', { name: 'Trail Packs' }).click();

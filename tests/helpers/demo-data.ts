@@ -10,12 +10,14 @@ export const testDemoAsOf = new Date('2026-11-30T00:00:00Z');
 /**
  * Writes the invented demo scenario straight into the tables (the import path has its own tests) and,
  * when asked, backfills the last `weeks` weekly snapshots of every demo category. Needs `seedDemo` first.
+ * The rows arrive at the demo's as-of, the moment its snapshots are taken, so a snapshot's evidence is the
+ * evidence on file: no "evidence changed since this snapshot" unless a test adds a review after it.
  */
 export async function loadDemoForTests(options: { weeks?: number } = {}): Promise<DemoScenario> {
   const scenario = generateDemoScenario({ asOf: testDemoAsOf });
   const categories = new Map((await Category.findAll()).map((c) => [c.slug, c.id]));
   const sequelize = db();
-  const now = new Date();
+  const now = testDemoAsOf;
   const itemRows = scenario.items.map((item) => [
     categories.get(item.category),
     item.sku,

@@ -3,6 +3,7 @@ import type { AggregateRow, ImportKind, ReviewRow, RowError } from '../../../sha
 import { storedRowErrorsMax, type ImportMode } from '../../../shared/schemas/imports-api.schema';
 import { db } from '../../db/sequelize';
 import { AppError } from '../../lib/app-error';
+import { countOf } from '../../../shared/plural';
 import { ImportFileError, type ParsedRecord, type RowOf } from './import-parser';
 
 /*
@@ -584,7 +585,7 @@ export async function writeRecords<K extends ImportKind>(
     if (counters.rowsRejected > 0) {
       await outer.rollback();
       const rejected: Counters = { ...counters, rowsAccepted: 0, rowsInserted: 0, rowsUpdated: 0 };
-      const message = `${counters.rowsRejected} of ${counters.rowsRead} rows have mistakes, so nothing was imported (all or nothing).`;
+      const message = `${counters.rowsRejected.toLocaleString('en-GB')} of ${countOf(counters.rowsRead, 'row')} ${counters.rowsRejected === 1 ? 'has a mistake' : 'have mistakes'}, so nothing was imported (all or nothing).`;
       await sequelize.transaction(async (t) => {
         await storeErrors(t, batchId, errors);
         await saveCounters(t, batchId, rejected, {

@@ -14,6 +14,7 @@ import { Category, JobRun, ReportSchedule } from '../../db/models';
 import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
 import { recordAudit } from '../audit/audit.service';
+import { countOf } from '../../../shared/plural';
 import { jobEvents } from './job-events';
 
 /** Lines kept per run: the first ones (how it started) and the newest ones (how it ended). */
@@ -74,7 +75,11 @@ export function capLog(lines: string[]): string {
   let kept = lines;
   if (lines.length > LOG_HEAD_LINES + LOG_TAIL_LINES) {
     const left = lines.length - LOG_HEAD_LINES - LOG_TAIL_LINES;
-    kept = [...lines.slice(0, LOG_HEAD_LINES), `… ${left} lines left out …`, ...lines.slice(-LOG_TAIL_LINES)];
+    kept = [
+      ...lines.slice(0, LOG_HEAD_LINES),
+      `… ${countOf(left, 'line')} left out …`,
+      ...lines.slice(-LOG_TAIL_LINES),
+    ];
   }
   let text = kept.map((l) => (l.length > 500 ? `${l.slice(0, 500)}…` : l)).join('\n');
   if (text.length > LOG_MAX_CHARS) text = `…${text.slice(-(LOG_MAX_CHARS - 1))}`;

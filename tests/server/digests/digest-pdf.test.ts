@@ -10,6 +10,8 @@ import {
 } from '../../../server/modules/digests/digests.service';
 import { buildStory } from '../../../server/modules/digests/digest-story';
 import { renderCategoryDigest } from '../../../templates/pdf/category-digest';
+import { priorWeightStrategyNames } from '../../../shared/vocabulary';
+import { num } from '../../../templates/pdf/blocks';
 import { renderPortfolioDigest } from '../../../templates/pdf/portfolio-digest';
 import { testDemoAsOf } from '../../helpers/demo-data';
 import { setupTestApp, type TestApp } from '../../helpers/test-app';
@@ -155,6 +157,26 @@ describe('portfolio digest PDF', () => {
       expect(text[0]).toContain(c.category.name);
       expect(text[i + 1]).toContain(c.category.name);
       expect(text[i + 1]).toContain(c.figures.spearmanRho!.toFixed(3));
+    }
+  });
+
+  it('shows beside m the strategy that set it on each category page, fallbacks included', async () => {
+    const data = await loadPortfolioDigestData(week, null, testDemoAsOf);
+    const fallen = data.categories[0]!;
+    fallen.params = { ...fallen.params, priorWeightStrategy: 'credibility', priorWeightApplied: 'total' };
+    const { pdf } = await renderPortfolioDigest(data, 'A4');
+    saveArtefacts('portfolio-m-strategy', pdf, 2);
+    const text = (await pdfPages(pdf)).map((t) => t.replace(/\s+/g, ' '));
+    expect(text[1]).toContain(
+      `Prior weight m = ${num(fallen.params.m, 1)}, from the total review count, a fallback: credibility could not be estimated`,
+    );
+    for (const [i, c] of data.categories.entries()) {
+      if (i === 0) continue;
+      // The demo's categories ask for the mean review count and get it.
+      expect(c.params.priorWeightApplied).toBe(c.params.priorWeightStrategy);
+      expect(text[i + 1]).toContain(
+        `Prior weight m = ${num(c.params.m, 1)}, from the ${priorWeightStrategyNames[c.params.priorWeightApplied]};`,
+      );
     }
   });
 });

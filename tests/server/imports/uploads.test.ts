@@ -182,13 +182,22 @@ describe('POST /api/imports', () => {
     expect((formula as { body: string }).body).toBe('=HYPERLINK("http://example.invalid","see photos")');
   });
 
+  it('counts one mistake in the singular when all-or-nothing refuses a file', async () => {
+    const [header, good] = (await readFile(mistakes, 'utf8')).split('\n');
+    const bad = good!.replace('vbm-m-0001', 'one-m-0002').replace(',4,2026-06-02,', ',6,2026-06-02,');
+    const csv = [header, good!.replace('vbm-m-0001', 'one-m-0001'), bad].join('\n') + '\n';
+    const batch = await importFile(ops, Buffer.from(csv), 'reviews', 'all_or_nothing', 'one.csv');
+    expect(batch).toMatchObject({ status: 'rejected', rowsRead: 2, rowsRejected: 1 });
+    expect(batch.errorMessage).toBe('1 of 2 rows has a mistake, so nothing was imported (all or nothing).');
+  });
+
   it('writes nothing in all-or-nothing mode and keeps every error', async () => {
     const before = await count('SELECT COUNT(*) AS n FROM reviews');
     const itemsBefore = await count('SELECT COUNT(*) AS n FROM items');
     const csv = (await readFile(mistakes, 'utf8')).replace(/vbm-m-/g, 'aon-m-').replace(/GT-/g, 'AON-');
     const batch = await importFile(ops, Buffer.from(csv), 'reviews', 'all_or_nothing', 'aon.csv');
     expect(batch).toMatchObject({ status: 'rejected', rowsRead: 13, rowsAccepted: 0, rowsRejected: 7 });
-    expect(batch.errorMessage).toContain('nothing was imported');
+    expect(batch.errorMessage).toBe('7 of 13 rows have mistakes, so nothing was imported (all or nothing).');
     expect(await count('SELECT COUNT(*) AS n FROM reviews')).toBe(before);
     expect(await count('SELECT COUNT(*) AS n FROM items')).toBe(itemsBefore);
     const rows = errorsCsv((await ops.get(`/api/imports/${batch.id}/errors.csv`).expect(200)).text);

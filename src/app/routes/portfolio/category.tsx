@@ -8,6 +8,7 @@ import { PageHeader } from '../../../components/ui/page-header';
 import { EmptyState, ErrorPanel, Loading } from '../../../components/ui/status';
 import { useMe } from '../../../features/auth/api/get-me';
 import { categoryQueryOptions, useCategory } from '../../../features/categories/api/get-category';
+import { RecomputeWeek } from '../../../features/jobs/components/recompute-week';
 import {
   standingsPath,
   standingsQueryOptions,
@@ -135,7 +136,7 @@ export function Component() {
               {[
                 ['Items', String(chosenWeek.itemCount)],
                 ['Reviews', chosenWeek.reviewCount.toLocaleString()],
-                ['Kendall τ-b', fmt.num(chosenWeek.kendallTauB, 3)],
+                [terms.kendall, fmt.num(chosenWeek.kendallTauB, 3)],
                 ['Mean |drift|', fmt.num(chosenWeek.meanAbsDrift, 1)],
                 ['Stale', fmt.pct(chosenWeek.staleShare)],
                 ['Thin evidence', fmt.pct(chosenWeek.thinShare)],
@@ -150,7 +151,7 @@ export function Component() {
           <div
             role="tablist"
             aria-label="Category views"
-            className="mb-4 flex gap-1 overflow-x-auto border-b border-ink-100"
+            className="mb-4 flex flex-wrap gap-1 border-b border-ink-100"
             onKeyDown={(e) => {
               // WAI-ARIA Authoring Practices, tabs pattern: arrows move and select, Home and End jump.
               const at = tabs.findIndex((t) => t.id === tab);
@@ -244,7 +245,11 @@ export function Component() {
               {tab === 'freshness' ? <FreshnessPanel slug={slug} week={view.week} /> : null}
               {tab === 'what-if' ? (
                 <Suspense fallback={<Loading label="Loading the scoring engine…" />}>
-                  <WhatIfPanel slug={slug} week={view.week} />
+                  <WhatIfPanel
+                    slug={slug}
+                    week={view.week}
+                    recompute={(isoWeek) => <RecomputeWeek slug={slug} isoWeek={isoWeek} />}
+                  />
                 </Suspense>
               ) : null}
             </WidgetBoundary>

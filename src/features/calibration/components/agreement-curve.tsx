@@ -1,6 +1,7 @@
 import { Line } from 'react-chartjs-2';
 import type { CalibrationResult } from '../../../../shared/scoring';
 import { chartColours } from '../../../components/charts/chart-setup';
+import { terms } from '../../../../shared/vocabulary';
 import { curveAxis } from './observed-summary';
 
 /** Kendall's tau-b against the prior weight: a step function, drawn as steps on a log axis. */
@@ -16,13 +17,13 @@ export function AgreementCurve({ result }: { result: CalibrationResult }) {
     <div
       className="h-80"
       role="img"
-      aria-label={`Agreement curve with ${steps.length} steps; best Kendall tau-b ${best.tau?.toFixed(3) ?? 'unknown'} for prior weights from ${best.start.toFixed(2)} to ${best.end === null ? 'infinity' : best.end.toFixed(2)}.`}
+      aria-label={`Agreement curve with ${steps.length} steps; best ${terms.kendall} ${best.tau?.toFixed(3) ?? 'unknown'} for prior weights from ${best.start.toFixed(2)} to ${best.end === null ? 'infinity' : best.end.toFixed(2)}.`}
     >
       <Line
         data={{
           datasets: [
             {
-              label: 'Kendall τ-b with the observed ordering',
+              label: `${terms.kendall} with the observed ordering`,
               data: points,
               stepped: 'before',
               borderColor: chartColours.ink,
@@ -62,7 +63,7 @@ export function AgreementCurve({ result }: { result: CalibrationResult }) {
               callbacks: {
                 label: (ctx) => {
                   const raw = ctx.raw as { x: number; y: number | null; label?: string };
-                  return `${raw.label ? `${raw.label}: ` : ''}m = ${raw.x.toFixed(2)}, τ-b = ${raw.y?.toFixed(3) ?? '—'}`;
+                  return `${raw.label ? `${raw.label}: ` : ''}m = ${raw.x.toFixed(2)}, ${terms.kendallShort} = ${raw.y?.toFixed(3) ?? '—'}`;
                 },
               },
             },
@@ -74,7 +75,7 @@ export function AgreementCurve({ result }: { result: CalibrationResult }) {
               max: hi,
               title: { display: true, text: 'Prior weight m (log scale)' },
             },
-            y: { title: { display: true, text: 'Kendall τ-b' }, suggestedMax: 1 },
+            y: { title: { display: true, text: terms.kendall }, suggestedMax: 1 },
           },
         }}
       />

@@ -7,7 +7,9 @@ import {
   type ScoringSettings,
 } from '../../../../shared/scoring';
 import { keyOf } from '../../../../shared/keys';
+import { countOf } from '../../../../shared/plural';
 import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
+import { terms } from '../../../../shared/vocabulary';
 import { Button } from '../../../components/ui/button';
 import { EmptyState, ErrorPanel, Loading, errorMessage } from '../../../components/ui/status';
 import { fmt } from '../../../lib/format';
@@ -253,7 +255,7 @@ export function CalibrationWorkbench({
               </dd>
             </div>
             <div className="rounded-md bg-paper px-3 py-2">
-              <dt className="text-xs font-semibold text-ink-500">Kendall τ-b there</dt>
+              <dt className="text-xs font-semibold text-ink-500">{terms.kendall} there</dt>
               <dd className="font-mono text-lg font-semibold">{fmt.num(r.best.tau, 3)}</dd>
             </div>
             <div className="rounded-md bg-paper px-3 py-2">
@@ -291,7 +293,7 @@ export function CalibrationWorkbench({
                       m
                     </th>
                     <th scope="col" className="text-right">
-                      τ-b
+                      {terms.kendallShort}
                     </th>
                     <th scope="col" className="text-right">
                       Short of best
@@ -421,8 +423,9 @@ export function CalibrationWorkbench({
                   </span>
                 </p>
                 <p className="font-mono text-xs text-ink-700">
-                  m ∈ {interval(n.best.start, n.best.end)}, τ-b {fmt.num(n.best.tau, 3)}, {n.matchedCount}{' '}
-                  items, {n.unexplained.length} unexplained
+                  m ∈ {interval(n.best.start, n.best.end)}, {terms.kendallShort} {fmt.num(n.best.tau, 3)},{' '}
+                  {countOf(n.matchedCount, 'item')}, {n.unexplained.length.toLocaleString('en-GB')}{' '}
+                  unexplained
                 </p>
               </li>
             ))}

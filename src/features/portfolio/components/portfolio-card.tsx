@@ -4,6 +4,7 @@ import type { PortfolioEntry } from '../../../../shared/schemas/standings.schema
 import { chartColours } from '../../../components/charts/chart-setup';
 import { Sparkline } from '../../../components/charts/sparkline';
 import { fmt } from '../../../lib/format';
+import { terms } from '../../../../shared/vocabulary';
 
 function Figure({
   label,
@@ -61,9 +62,9 @@ export function PortfolioCard({ entry, asOfWeek }: { entry: PortfolioEntry; asOf
       {latest ? (
         <dl className="mt-2 px-5 pb-4">
           <Figure
-            label="Rank agreement τ-b"
+            label={`Rank agreement, ${terms.kendall}`}
             value={fmt.num(latest.kendallTauB, 3)}
-            extra={`Spearman ρ ${fmt.num(latest.spearmanRho, 3)}`}
+            extra={`${terms.spearman} ${fmt.num(latest.spearmanRho, 3)}`}
             hint="How far the naive and smoothed orderings agree: 1 is the same order."
             trend={trend.map((w) => w.kendallTauB)}
             colour={chartColours.ink}

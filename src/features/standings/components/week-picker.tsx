@@ -15,8 +15,9 @@ export function WeekPicker({
 }) {
   const latest = weeks[0];
   return (
-    <div className="flex items-center gap-2">
-      <label htmlFor={id} className="text-sm font-semibold text-ink-700">
+    // Bounded by its row and the select allowed to shrink, so a long week label never runs off a phone.
+    <div className="flex min-w-0 max-w-full items-center gap-2">
+      <label htmlFor={id} className="shrink-0 text-sm font-semibold text-ink-700">
         Week
       </label>
       <select

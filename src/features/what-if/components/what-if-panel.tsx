@@ -19,8 +19,9 @@ import { fmt } from '../../../lib/format';
 import { useCategorySettings } from '../api/get-category-settings';
 import { useUpdateCategorySettings } from '../api/update-category-settings';
 import { useWhatIfEvidence } from '../api/get-what-if-evidence';
-import { useQueueBackfill } from '../../jobs/api/queue-backfill';
 import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
+import { priorWeightApplied, standingsColumns, terms } from '../../../../shared/vocabulary';
+import { movedSummary } from './moved-summary';
 
 const weightLabels: Record<PriorWeightStrategy, string> = {
   mean: 'Mean review count per item',
@@ -113,15 +114,14 @@ const count = (n: number) => n.toLocaleString('en-GB');
  * preview (today's evidence) and the saved side no longer share their input, and the reader must know.
  */
 function EvidenceChangedBanner(props: {
-  slug: string;
   isoWeek: string;
   takenAt: string;
   change: WhatIfEvidence['evidenceChange'];
   savedItems: number;
   savedReviews: number;
   canRecompute: boolean;
+  recompute: WhatIfPanelProps['recompute'];
 }) {
-  const recompute = useQueueBackfill();
   const { change } = props;
   const details: string[] = [];
   if (change.lateReviews > 0)
@@ -149,29 +149,8 @@ function EvidenceChangedBanner(props: {
         The saved side shows the standings of {props.isoWeek} as taken on {fmt.dateTime(props.takenAt)}; the
         preview uses today&apos;s evidence: {details.join('; ')}.
       </p>
-      {props.canRecompute ? (
-        <div className="mt-2 flex flex-wrap items-center gap-3">
-          <Button
-            type="button"
-            disabled={recompute.isPending || recompute.isSuccess}
-            onClick={() =>
-              recompute.mutate({
-                category: props.slug,
-                fromWeek: props.isoWeek,
-                toWeek: props.isoWeek,
-                replace: true,
-              })
-            }
-          >
-            Recompute {props.isoWeek}
-          </Button>
-          {recompute.isSuccess ? (
-            <span aria-live="polite">
-              Recompute queued. <Link to="/jobs">The job history</Link> shows when it is done.
-            </span>
-          ) : null}
-          {recompute.isError ? <span className="text-red-700">{errorMessage(recompute.error)}</span> : null}
-        </div>
+      {props.canRecompute && props.recompute ? (
+        props.recompute(props.isoWeek)
       ) : (
         <p className="mt-1 text-ink-600">Operations staff or an administrator can recompute the snapshot.</p>
       )}
@@ -179,11 +158,18 @@ function EvidenceChangedBanner(props: {
   );
 }
 
+type WhatIfPanelProps = {
+  slug: string;
+  week: string | undefined;
+  /** The recompute control for a week, composed by the page (the jobs feature owns it). */
+  recompute?: (isoWeek: string) => React.ReactNode;
+};
+
 /**
  * Re-scores the week's evidence in the browser with the same engine the weekly job runs, so a change of
  * prior or threshold shows its effect at once; saving stores the settings for the next snapshots.
  */
-export function WhatIfPanel({ slug, week }: { slug: string; week: string | undefined }) {
+export function WhatIfPanel({ slug, week, recompute }: WhatIfPanelProps) {
   const settings = useCategorySettings(slug);
   const effective = settings.data?.effective as ScoringSettings | undefined;
   const [draft, setDraft] = useState<Draft | null>(null);
@@ -254,14 +240,19 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
   const p = preview.ok ? preview.result : null;
   const changed = JSON.stringify(changeFrom(draftFrom(effective))) !== changeKey;
   const savedWeek = savedSide.week;
-  const savedParams = evidence.data!.resolved as { m: number; C: number };
+  const savedParams = evidence.data!.resolved as {
+    m: number;
+    C: number;
+    priorWeightStrategy: PriorWeightStrategy;
+    priorWeightApplied: PriorWeightStrategy;
+  };
   const drift = evidence.data!.evidenceChange;
 
   const figures: [string, string, string][] = p
     ? [
         ['Prior weight m', fmt.num(savedParams.m, 1), fmt.num(p.resolved.m, 1)],
         ['Prior mean C', fmt.num(savedParams.C, 3), fmt.num(p.resolved.C, 3)],
-        ['Kendall τ-b', fmt.num(savedWeek.kendallTauB, 3), fmt.num(p.category.kendallTauB, 3)],
+        [terms.kendall, fmt.num(savedWeek.kendallTauB, 3), fmt.num(p.category.kendallTauB, 3)],
         ['Mean |drift|', fmt.num(savedWeek.meanAbsDrift, 1), fmt.num(p.category.meanAbsDrift, 1)],
         ['Items', count(savedWeek.itemCount), count(p.category.itemCount)],
         ['Reviews', count(savedWeek.reviewCount), count(p.category.reviewCount)],
@@ -418,13 +409,13 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
       <div className="min-w-0 space-y-6">
         {drift.changed ? (
           <EvidenceChangedBanner
-            slug={slug}
             isoWeek={savedWeek.isoWeek}
             takenAt={savedWeek.takenAt}
             change={drift}
             savedItems={savedWeek.itemCount}
             savedReviews={savedWeek.reviewCount}
             canRecompute={evidence.data!.canRecompute}
+            recompute={recompute}
           />
         ) : null}
 
@@ -448,10 +439,21 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
                 </div>
               ))}
             </dl>
+            <p className="mt-2 text-sm text-ink-700" data-testid="what-if-m-strategy">
+              <span className="font-semibold">{standingsColumns.priorWeightApplied.label} for m:</span>{' '}
+              <span className="text-ink-500">{priorWeightApplied(savedParams)}</span> →{' '}
+              <span
+                className={
+                  priorWeightApplied(savedParams) === priorWeightApplied(p.resolved)
+                    ? 'text-ink-800'
+                    : 'font-bold text-brass-700'
+                }
+              >
+                {priorWeightApplied(p.resolved)}
+              </span>
+            </p>
             <p className="mt-3 text-sm text-ink-700" aria-live="polite" data-testid="what-if-moved">
-              {moved === 0
-                ? 'No item changes its smoothed rank with these settings.'
-                : `${moved} of ${rows.length} items change their smoothed rank; the ten that move most are marked.`}
+              {movedSummary(moved, rows.length, movers.length)}
             </p>
           </section>
         ) : null}
@@ -462,7 +464,7 @@ export function WhatIfPanel({ slug, week }: { slug: string; week: string | undef
               Drift with these settings
             </h3>
             <DriftScatter
-              title={`Preview: naive rank against smoothed rank for ${rows.length} items`}
+              title={`Preview: naive rank against smoothed rank for ${countOf(rows.length, 'item')}`}
               points={p.items.map((r) => ({
                 sku: r.sku,
                 naive: r.naiveRank,
