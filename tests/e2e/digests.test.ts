@@ -125,9 +125,11 @@ async function expectPreview(w: Watched, title: string, pdfPath: string, docTitl
   await expect
     .poll(() => answers().some((r) => r.status === 200 && r.type === 'application/pdf'), { timeout: 15_000 })
     .toBe(true);
+  // A repeated fetch the viewer answers from its cache, or cancels, can reach Playwright without headers;
+  // what must never happen is an error status or another kind of document.
   for (const answer of answers()) {
-    expect([200, 206]).toContain(answer.status);
-    expect(answer.type).toBe('application/pdf');
+    expect([200, 206, 304]).toContain(answer.status);
+    if (answer.type !== undefined) expect(answer.type).toBe('application/pdf');
   }
   const current = page.getByRole('list', { name: 'Weekly digests' }).locator('[aria-current="true"]');
   // "8 pages · A4", the entry's second part
