@@ -1,3 +1,4 @@
+import { Tinypool } from 'tinypool';
 import {
   calibrate,
   scoreRequest,
@@ -5,7 +6,8 @@ import {
   type ItemInput,
   type ScoringSettings,
 } from '../../shared/scoring';
-import { SCORE_PAGE_MAX, type ScoreRequest } from '../../shared/schemas/score.schema';
+import { SCORE_PAGE_MAX, scoreRequestSchema, type ScoreRequest } from '../../shared/schemas/score.schema';
+import { parseJsonBytes, type JsonBodyFailure } from './json-body';
 
 export interface CalibrateTask {
   kind: 'calibrate';
@@ -17,7 +19,8 @@ export interface CalibrateTask {
 
 export interface ScoreTask {
   kind: 'score';
-  request: ScoreRequest;
+  /** The request body as it arrived (null: none); parsed and checked here, off the event loop. */
+  body: Uint8Array | null;
   /** The caller's clock reading, so a worker never decides "now" itself. */
   now: string;
 }
@@ -43,9 +46,27 @@ export function scorePage(request: ScoreRequest, now: Date): ScorePage {
 
 export type WorkerTask = CalibrateTask | ScoreTask;
 
-/** An input error crosses the thread boundary as plain data; the service turns it back into a 400. */
+/**
+ * The answer's JSON as bytes moved (not copied) to the event loop, which sends them as they are; an input
+ * error crosses the thread boundary as plain data and the service turns it back into a 400.
+ */
 export type ScoreOutcome =
-  { ok: true; result: ScorePage } | { ok: false; path: string; reason: string; message: string };
+  | Uint8Array
+  | JsonBodyFailure
+  | { ok: false; kind: 'scoring'; path: string; reason: string; message: string };
+
+function scoreBody(task: ScoreTask): ScoreOutcome {
+  const read = parseJsonBytes(scoreRequestSchema, task.body);
+  if (!read.ok) return read;
+  try {
+    const page = scorePage(read.value, new Date(task.now));
+    return Tinypool.move(new TextEncoder().encode(JSON.stringify(page))) as Uint8Array;
+  } catch (err) {
+    if (err instanceof ScoringInputError)
+      return { ok: false, kind: 'scoring', path: err.path, reason: err.reason, message: err.message };
+    throw err;
+  }
+}
 
 /** Runs in a worker thread: the CPU-heavy part only, plain data in and out. */
 export default function runTask(task: WorkerTask) {
@@ -53,17 +74,6 @@ export default function runTask(task: WorkerTask) {
     case 'calibrate':
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
     case 'score':
-      try {
-        return { ok: true, result: scorePage(task.request, new Date(task.now)) } satisfies ScoreOutcome;
-      } catch (err) {
-        if (err instanceof ScoringInputError)
-          return {
-            ok: false,
-            path: err.path,
-            reason: err.reason,
-            message: err.message,
-          } satisfies ScoreOutcome;
-        throw err;
-      }
+      return scoreBody(task);
   }
 }

@@ -93,6 +93,13 @@ describe('heavy requests and everyone else', () => {
     expect(Number(again.headers['retry-after'])).toBeGreaterThan(0);
     expect(again.body.error.code).toBe('too_many_requests');
     expect(again.body.error.message).toMatch(/heavy requests running/);
+    // The limit comes before the body is read: a body no one parsed on the event loop, even a broken one.
+    const broken = await analyst
+      .post('/api/score')
+      .set('x-csrf-token', analyst.csrf)
+      .set('content-type', 'application/json')
+      .send('{"items": [');
+    expect(broken.status).toBe(429);
 
     // Another person is not held to the analyst's limit, but the one worker is busy and nothing may wait.
     const other = await manager.post('/api/score').set('x-csrf-token', manager.csrf).send(smallBody);
@@ -107,6 +114,17 @@ describe('heavy requests and everyone else', () => {
       .send(smallBody)
       .expect(200);
     expect(after.body.items).toHaveLength(2);
+    // Parsed in the worker, a broken body answers as express.json answers one (error-handler.ts).
+    const unreadable = await analyst
+      .post('/api/score')
+      .set('x-csrf-token', analyst.csrf)
+      .set('content-type', 'application/json')
+      .send('{"items": [')
+      .expect(400);
+    expect(unreadable.body.error).toEqual({
+      code: 'bad_request',
+      message: 'The request body is not valid JSON.',
+    });
     expect(await heavyNow()).toEqual({ running: 0, queued: 0 });
   });
 });
