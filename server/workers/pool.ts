@@ -30,7 +30,8 @@ function thePool(): Tinypool {
     filename: new URL('./bootstrap.mjs', import.meta.url).href,
     minThreads: 0,
     maxThreads: limits.workers,
-    maxQueue: Math.max(1, limits.maxQueue),
+    // The bound is kept by runInWorker's own count (requests are refused past it; background work waits).
+    maxQueue: Number.POSITIVE_INFINITY,
     idleTimeout: 30_000,
   });
   return pool;
@@ -58,11 +59,16 @@ export function heavyWork(): { running: number; queued: number } {
 
 /**
  * Runs a task in a worker thread. A task given as a function is built (its request body read) only once
- * a place in the pool is taken, so at most workers + maxQueue heavy inputs are ever held in memory.
+ * a place in the pool is taken, so at most workers + maxQueue request inputs are ever held in memory.
+ * `wait` is for work no one should be refused (digest rendering): it queues past that bound.
  */
-export async function runInWorker<T>(task: WorkerTask | (() => Promise<WorkerTask>)): Promise<T> {
+export async function runInWorker<T>(
+  task: WorkerTask | (() => Promise<WorkerTask>),
+  options: { wait?: boolean } = {},
+): Promise<T> {
   const p = thePool();
-  if (reserved >= limits.workers + limits.maxQueue) throw busy();
+  // Background work (digests of a scheduled run, one at a time) waits its turn instead of failing.
+  if (!options.wait && reserved >= limits.workers + limits.maxQueue) throw busy();
   reserved += 1;
   try {
     const input = typeof task === 'function' ? await task() : task;

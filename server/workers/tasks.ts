@@ -1,3 +1,4 @@
+import { createReadStream } from 'node:fs';
 import { Tinypool } from 'tinypool';
 import {
   calibrate,
@@ -7,6 +8,17 @@ import {
   type ScoringSettings,
 } from '../../shared/scoring';
 import { SCORE_PAGE_MAX, scoreRequestSchema, type ScoreRequest } from '../../shared/schemas/score.schema';
+import type { CategoryDigestData, PaperSize, PortfolioDigestData } from '../../shared/schemas/digests.schema';
+import type { ImportKind } from '../../shared/schemas/import.schema';
+import { renderCategoryDigest } from '../../templates/pdf/category-digest';
+import { renderPortfolioDigest } from '../../templates/pdf/portfolio-digest';
+import {
+  ImportFileError,
+  parseImport,
+  type Delimiter,
+  type HeaderMapping,
+  type ParsedRecord,
+} from '../modules/imports/import-parser';
 import { parseJsonBytes, type JsonBodyFailure } from './json-body';
 
 export interface CalibrateTask {
@@ -44,7 +56,58 @@ export function scorePage(request: ScoreRequest, now: Date): ScorePage {
   };
 }
 
-export type WorkerTask = CalibrateTask | ScoreTask;
+export type DigestTask =
+  | { kind: 'digest'; digest: 'category'; data: CategoryDigestData; paper: PaperSize }
+  | { kind: 'digest'; digest: 'portfolio'; data: PortfolioDigestData; paper: PaperSize };
+
+/** The PDF's bytes (a few hundred KB, copied back to the event loop) and its page count. */
+export type RenderedDigest = { pdf: Uint8Array; pages: number };
+
+async function renderDigest(task: DigestTask) {
+  const { pdf, pages } =
+    task.digest === 'category'
+      ? await renderCategoryDigest(task.data, task.paper)
+      : await renderPortfolioDigest(task.data, task.paper);
+  return { pdf, pages } satisfies RenderedDigest;
+}
+
+export interface PreviewTask {
+  kind: 'preview';
+  filePath: string;
+  importKind: ImportKind;
+  /** Records to read at most: the preview's rows and one more, to tell whether there are more. */
+  records: number;
+  maxBytes: number;
+  now: string;
+}
+
+export type PreviewRead = {
+  records: ParsedRecord<ImportKind>[];
+  progress: { delimiter: Delimiter; header: HeaderMapping[]; warnings: string[] };
+  fileError: { code: string; message: string; line: number | null } | null;
+};
+
+/** The first records of an uploaded file, read by the import parser itself. */
+async function readPreview(task: PreviewTask): Promise<PreviewRead> {
+  const parse = parseImport(createReadStream(task.filePath), task.importKind, {
+    now: new Date(task.now),
+    maxBytes: task.maxBytes,
+  });
+  const records: ParsedRecord<ImportKind>[] = [];
+  let fileError: PreviewRead['fileError'] = null;
+  try {
+    for await (const record of parse) {
+      records.push(record);
+      if (records.length >= task.records) break;
+    }
+  } catch (error) {
+    if (!(error instanceof ImportFileError)) throw error;
+    fileError = { code: error.code, message: error.message, line: error.line ?? null };
+  }
+  return { records, progress: parse.progress, fileError };
+}
+
+export type WorkerTask = CalibrateTask | ScoreTask | DigestTask | PreviewTask;
 
 /**
  * The answer's JSON as bytes moved (not copied) to the event loop, which sends them as they are; an input
@@ -75,5 +138,9 @@ export default function runTask(task: WorkerTask) {
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
     case 'score':
       return scoreBody(task);
+    case 'digest':
+      return renderDigest(task);
+    case 'preview':
+      return readPreview(task);
   }
 }
