@@ -53,7 +53,6 @@ export function createApp({ config, sequelize }: AppDeps): Express {
       },
     }),
   );
-  app.use(express.json({ limit: '10mb' }));
   app.use(buildApiRouter(apiRoutes.filter((r) => r.sessionless)));
 
   const store = throttleSessionTouch(

@@ -38,6 +38,12 @@ export type RouteDef<B extends Schema = Schema, Q extends Schema = Schema> = {
   tag: string;
   access: Access;
   body?: B;
+  /**
+   * The JSON body is not read or checked on the event loop: the handler reads it raw (lib/json-body.ts)
+   * and a worker thread parses it and checks it against `body`, which stays the one declaration the
+   * OpenAPI document publishes. For heavy routes whose bodies run to megabytes.
+   */
+  bodyInWorker?: boolean;
   query?: Q;
   response?: z.ZodType;
   /** Answered before sessions are read, so it works while the session store (the database) is down. */

@@ -1,4 +1,5 @@
-import { Router } from 'express';
+import { Router, type RequestHandler } from 'express';
+import { jsonBody } from '../lib/json-body';
 import type { RouteDef } from '../lib/route';
 import { guard } from '../middleware/guard';
 import { authRoutes } from './auth/auth.routes';
@@ -36,11 +37,15 @@ export const apiRoutes: RouteDef[] = [
   ...subscriptionRoutes,
 ];
 
+const bodyLeftForTheHandler: RequestHandler = (_req, _res, next) => next();
+
 export function buildApiRouter(routes: RouteDef[]): Router {
   const router = Router();
   for (const def of routes) {
-    router[def.method](def.path, guard(def.access), async (req, res) => {
-      const body = def.body ? def.body.parse(req.body ?? {}) : undefined;
+    // Bodies are read after the guard, so a caller who may not use a route cannot make the server read one.
+    const body = def.bodyInWorker ? bodyLeftForTheHandler : jsonBody;
+    router[def.method](def.path, guard(def.access), body, async (req, res) => {
+      const body = def.body && !def.bodyInWorker ? def.body.parse(req.body ?? {}) : undefined;
       const query = def.query ? def.query.parse(req.query) : undefined;
       const result = await def.handler(req, res, { body, query });
       if (res.headersSent || result === undefined) return;

@@ -30,7 +30,8 @@ function thePool(): Tinypool {
     filename: new URL('./bootstrap.mjs', import.meta.url).href,
     minThreads: 0,
     maxThreads: limits.workers,
-    maxQueue: Math.max(1, limits.maxQueue),
+    // The bound is kept by runInWorker's own count (requests are refused past it; background work waits).
+    maxQueue: Number.POSITIVE_INFINITY,
     idleTimeout: 30_000,
   });
   return pool;
@@ -45,6 +46,9 @@ function busy(): AppError {
   );
 }
 
+/** Places taken in the pool (workers + queue), counted before a task's input is even read. */
+let reserved = 0;
+/** Tasks handed to the pool: running or waiting for a worker. */
 let pending = 0;
 
 /** What the pool holds now, for /api/health and the bench. */
@@ -53,17 +57,32 @@ export function heavyWork(): { running: number; queued: number } {
   return { running, queued: pending - running };
 }
 
-export async function runInWorker<T>(task: WorkerTask): Promise<T> {
+/**
+ * Runs a task in a worker thread. A task given as a function is built (its request body read) only once
+ * a place in the pool is taken, so at most workers + maxQueue request inputs are ever held in memory.
+ * `wait` is for work no one should be refused (digest rendering): it queues past that bound.
+ */
+export async function runInWorker<T>(
+  task: WorkerTask | (() => Promise<WorkerTask>),
+  options: { wait?: boolean } = {},
+): Promise<T> {
   const p = thePool();
-  if (pending >= limits.workers + limits.maxQueue) throw busy();
-  pending += 1;
+  // Background work (digests of a scheduled run, one at a time) waits its turn instead of failing.
+  if (!options.wait && reserved >= limits.workers + limits.maxQueue) throw busy();
+  reserved += 1;
   try {
-    return (await p.run(task)) as T;
+    const input = typeof task === 'function' ? await task() : task;
+    pending += 1;
+    try {
+      return (await p.run(input)) as T;
+    } finally {
+      pending -= 1;
+    }
   } catch (err) {
     if (err instanceof Error && /queue is at limit/i.test(err.message)) throw busy();
     throw err;
   } finally {
-    pending -= 1;
+    reserved -= 1;
   }
 }
 

@@ -1,3 +1,5 @@
+import { createReadStream } from 'node:fs';
+import { Tinypool } from 'tinypool';
 import {
   calibrate,
   scoreRequest,
@@ -5,7 +7,19 @@ import {
   type ItemInput,
   type ScoringSettings,
 } from '../../shared/scoring';
-import { SCORE_PAGE_MAX, type ScoreRequest } from '../../shared/schemas/score.schema';
+import { SCORE_PAGE_MAX, scoreRequestSchema, type ScoreRequest } from '../../shared/schemas/score.schema';
+import type { CategoryDigestData, PaperSize, PortfolioDigestData } from '../../shared/schemas/digests.schema';
+import type { ImportKind } from '../../shared/schemas/import.schema';
+import { renderCategoryDigest } from '../../templates/pdf/category-digest';
+import { renderPortfolioDigest } from '../../templates/pdf/portfolio-digest';
+import {
+  ImportFileError,
+  parseImport,
+  type Delimiter,
+  type HeaderMapping,
+  type ParsedRecord,
+} from '../modules/imports/import-parser';
+import { parseJsonBytes, type JsonBodyFailure } from './json-body';
 
 export interface CalibrateTask {
   kind: 'calibrate';
@@ -17,7 +31,8 @@ export interface CalibrateTask {
 
 export interface ScoreTask {
   kind: 'score';
-  request: ScoreRequest;
+  /** The request body as it arrived (null: none); parsed and checked here, off the event loop. */
+  body: Uint8Array | null;
   /** The caller's clock reading, so a worker never decides "now" itself. */
   now: string;
 }
@@ -41,11 +56,80 @@ export function scorePage(request: ScoreRequest, now: Date): ScorePage {
   };
 }
 
-export type WorkerTask = CalibrateTask | ScoreTask;
+export type DigestTask =
+  | { kind: 'digest'; digest: 'category'; data: CategoryDigestData; paper: PaperSize }
+  | { kind: 'digest'; digest: 'portfolio'; data: PortfolioDigestData; paper: PaperSize };
 
-/** An input error crosses the thread boundary as plain data; the service turns it back into a 400. */
+/** The PDF's bytes (a few hundred KB, copied back to the event loop) and its page count. */
+export type RenderedDigest = { pdf: Uint8Array; pages: number };
+
+async function renderDigest(task: DigestTask) {
+  const { pdf, pages } =
+    task.digest === 'category'
+      ? await renderCategoryDigest(task.data, task.paper)
+      : await renderPortfolioDigest(task.data, task.paper);
+  return { pdf, pages } satisfies RenderedDigest;
+}
+
+export interface PreviewTask {
+  kind: 'preview';
+  filePath: string;
+  importKind: ImportKind;
+  /** Records to read at most: the preview's rows and one more, to tell whether there are more. */
+  records: number;
+  maxBytes: number;
+  now: string;
+}
+
+export type PreviewRead = {
+  records: ParsedRecord<ImportKind>[];
+  progress: { delimiter: Delimiter; header: HeaderMapping[]; warnings: string[] };
+  fileError: { code: string; message: string; line: number | null } | null;
+};
+
+/** The first records of an uploaded file, read by the import parser itself. */
+async function readPreview(task: PreviewTask): Promise<PreviewRead> {
+  const parse = parseImport(createReadStream(task.filePath), task.importKind, {
+    now: new Date(task.now),
+    maxBytes: task.maxBytes,
+  });
+  const records: ParsedRecord<ImportKind>[] = [];
+  let fileError: PreviewRead['fileError'] = null;
+  try {
+    for await (const record of parse) {
+      records.push(record);
+      if (records.length >= task.records) break;
+    }
+  } catch (error) {
+    if (!(error instanceof ImportFileError)) throw error;
+    fileError = { code: error.code, message: error.message, line: error.line ?? null };
+  }
+  return { records, progress: parse.progress, fileError };
+}
+
+export type WorkerTask = CalibrateTask | ScoreTask | DigestTask | PreviewTask;
+
+/**
+ * The answer's JSON as bytes moved (not copied) to the event loop, which sends them as they are; an input
+ * error crosses the thread boundary as plain data and the service turns it back into a 400.
+ */
 export type ScoreOutcome =
-  { ok: true; result: ScorePage } | { ok: false; path: string; reason: string; message: string };
+  | Uint8Array
+  | JsonBodyFailure
+  | { ok: false; kind: 'scoring'; path: string; reason: string; message: string };
+
+function scoreBody(task: ScoreTask): ScoreOutcome {
+  const read = parseJsonBytes(scoreRequestSchema, task.body);
+  if (!read.ok) return read;
+  try {
+    const page = scorePage(read.value, new Date(task.now));
+    return Tinypool.move(new TextEncoder().encode(JSON.stringify(page))) as Uint8Array;
+  } catch (err) {
+    if (err instanceof ScoringInputError)
+      return { ok: false, kind: 'scoring', path: err.path, reason: err.reason, message: err.message };
+    throw err;
+  }
+}
 
 /** Runs in a worker thread: the CPU-heavy part only, plain data in and out. */
 export default function runTask(task: WorkerTask) {
@@ -53,17 +137,10 @@ export default function runTask(task: WorkerTask) {
     case 'calibrate':
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
     case 'score':
-      try {
-        return { ok: true, result: scorePage(task.request, new Date(task.now)) } satisfies ScoreOutcome;
-      } catch (err) {
-        if (err instanceof ScoringInputError)
-          return {
-            ok: false,
-            path: err.path,
-            reason: err.reason,
-            message: err.message,
-          } satisfies ScoreOutcome;
-        throw err;
-      }
+      return scoreBody(task);
+    case 'digest':
+      return renderDigest(task);
+    case 'preview':
+      return readPreview(task);
   }
 }

@@ -14,8 +14,6 @@ import type {
 } from '../../../shared/schemas/digests.schema';
 import { countOf } from '../../../shared/plural';
 import type { CategoryFigures, ResolvedParameters } from '../../../shared/scoring';
-import { renderCategoryDigest } from '../../../templates/pdf/category-digest';
-import { renderPortfolioDigest } from '../../../templates/pdf/portfolio-digest';
 import { loadConfig } from '../../config/env';
 import { Category, Digest, JobRun, MailDelivery, ReportSchedule, Snapshot } from '../../db/models';
 import { db } from '../../db/sequelize';
@@ -27,6 +25,8 @@ import {
   portfolioRecipients,
   portfolioTarget,
 } from '../subscriptions/subscriptions.service';
+import { runInWorker } from '../../workers/pool';
+import type { DigestTask, RenderedDigest } from '../../workers/tasks';
 import { buildStory, keyFigures } from './digest-story';
 
 function json<T>(value: unknown): T {
@@ -318,6 +318,12 @@ async function store(
   return row!.id;
 }
 
+/** pdfkit renders in a worker thread: a 500-item digest takes seconds of CPU the event loop must not spend. */
+async function renderInWorker(task: DigestTask): Promise<{ pdf: Buffer; pages: number }> {
+  const { pdf, pages } = await runInWorker<RenderedDigest>(task, { wait: true });
+  return { pdf: Buffer.from(pdf.buffer, pdf.byteOffset, pdf.byteLength), pages };
+}
+
 export type ProduceOptions = {
   isoWeek: string;
   /** Categories to render; every category with a snapshot of the week when null or absent. */
@@ -361,7 +367,7 @@ export async function produceDigests(options: ProduceOptions): Promise<ProduceDi
   const result: ProduceDigestsResult = { isoWeek: options.isoWeek, digests: [], queued: 0, skipped };
   for (const { categoryId } of snapshots) {
     const data = await loadCategoryDigestData(categoryId, options.isoWeek, now);
-    const rendered = await renderCategoryDigest(data, paper);
+    const rendered = await renderInWorker({ kind: 'digest', digest: 'category', data, paper });
     const id = await store(
       'category',
       categoryId,
@@ -399,7 +405,7 @@ export async function produceDigests(options: ProduceOptions): Promise<ProduceDi
   if (buildPortfolio) {
     const data = await loadPortfolioDigestData(options.isoWeek, scheduleCategories, now);
     if (data.categories.length > 0) {
-      const rendered = await renderPortfolioDigest(data, paper);
+      const rendered = await renderInWorker({ kind: 'digest', digest: 'portfolio', data, paper });
       const id = await store('portfolio', 0, options.isoWeek, paper, rendered, portfolioSummary(data), now);
       result.digests.push({ id, kind: 'portfolio', category: null });
       log(`Portfolio digest for ${options.isoWeek}: ${countOf(rendered.pages, 'page')}.`);

@@ -23,7 +23,6 @@ import {
   listImports,
   previewImport,
   startUpload,
-  uploadReadable,
 } from './imports.service';
 
 const importers = access.roles(['admin', 'ops', 'manager']);
@@ -79,7 +78,7 @@ export const importRoutes = [
       const file = await receiveFile(req, res);
       try {
         const { kind } = uploadFieldsSchema.parse(req.body ?? {});
-        return await previewImport(uploadReadable(file.path), kind, req.actor!, file.originalname);
+        return await previewImport(file.path, kind, req.actor!, file.originalname);
       } finally {
         await rm(file.path, { force: true });
       }

@@ -1,7 +1,6 @@
 import { createReadStream, mkdirSync, type ReadStream } from 'node:fs';
 import { rm, stat } from 'node:fs/promises';
 import path from 'node:path';
-import type { Readable } from 'node:stream';
 import { Op } from 'sequelize';
 import {
   CrossRowRules,
@@ -17,7 +16,6 @@ import {
 } from '../../../shared/schemas/import.schema';
 import {
   previewRowCount,
-  type FileError,
   type ImportBatchRecord,
   type ImportMode,
   type ImportPreview,
@@ -29,9 +27,11 @@ import { ApiToken, CategoryOwner, ImportBatch, ImportRowError, User } from '../.
 import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
 import { logger } from '../../lib/logger';
+import { runInWorker } from '../../workers/pool';
+import type { PreviewRead } from '../../workers/tasks';
 import { rejectedRowsCsv } from './csv-safe';
 import { claimImport, importWorkerId, keepLeases, newLease, releaseImport } from './import-leases';
-import { ImportFileError, parseImport, type Delimiter, type ParsedRecord } from './import-parser';
+import { parseImport, type Delimiter, type ParsedRecord } from './import-parser';
 import {
   conflictPause,
   fromArray,
@@ -88,10 +88,6 @@ const delimiterNames: Record<Delimiter, 'comma' | 'semicolon' | 'tab'> = {
   '\t': 'tab',
 };
 
-function fileError(error: ImportFileError): FileError {
-  return { code: error.code, message: error.message, line: error.line ?? null };
-}
-
 function describeRow(row: ReviewRow | AggregateRow): Record<string, string> {
   const text = (v: string | number | boolean | null | undefined): string =>
     v === null || v === undefined ? '' : String(v);
@@ -127,15 +123,26 @@ function describeRow(row: ReviewRow | AggregateRow): Record<string, string> {
   };
 }
 
-/** The first rows of a file as the import will read them, without writing anything. */
+/**
+ * The first rows of a file as the import will read them, without writing anything. The parser reads the
+ * file in a worker thread (a single 200 KB line costs it real CPU); only the check against the caller's
+ * categories, which needs the database, runs here.
+ */
 export async function previewImport(
-  source: Readable,
+  filePath: string,
   kind: ImportKind,
   actor: Actor,
   fileName: string | null,
 ): Promise<ImportPreview> {
   const scope = await loadCategoryScope(actor.categoryIds);
-  const parse = parseImport(source, kind, { now: new Date(), maxBytes: importSettings().maxBytes });
+  const read = await runInWorker<PreviewRead>({
+    kind: 'preview',
+    filePath,
+    importKind: kind,
+    records: previewRowCount + 1,
+    maxBytes: importSettings().maxBytes,
+    now: new Date().toISOString(),
+  });
   const preview: ImportPreview = {
     kind,
     fileName,
@@ -143,38 +150,32 @@ export async function previewImport(
     header: [],
     rows: [],
     more: false,
-    fileError: null,
+    fileError: read.fileError,
     warnings: [],
   };
-  try {
-    for await (const record of parse) {
-      if (preview.rows.length >= previewRowCount) {
-        preview.more = true;
-        break;
-      }
-      if ('error' in record) {
-        preview.rows.push({ line: record.line, values: null, error: record.error });
-        continue;
-      }
-      const category = checkCategory(scope, record.row.category);
-      preview.rows.push(
-        typeof category === 'string'
-          ? {
-              line: record.line,
-              values: null,
-              error: { line: record.line, column: 'category', reason: category },
-            }
-          : { line: record.line, values: describeRow(record.row), error: null },
-      );
+  for (const record of read.records) {
+    if (preview.rows.length >= previewRowCount) {
+      preview.more = true;
+      break;
     }
-  } catch (error) {
-    if (!(error instanceof ImportFileError)) throw error;
-    preview.fileError = fileError(error);
+    if ('error' in record) {
+      preview.rows.push({ line: record.line, values: null, error: record.error });
+      continue;
+    }
+    const category = checkCategory(scope, record.row.category);
+    preview.rows.push(
+      typeof category === 'string'
+        ? {
+            line: record.line,
+            values: null,
+            error: { line: record.line, column: 'category', reason: category },
+          }
+        : { line: record.line, values: describeRow(record.row), error: null },
+    );
   }
-  const read = parse.progress;
-  if (read.header.length > 0) preview.delimiter = delimiterNames[read.delimiter];
-  preview.header = read.header;
-  preview.warnings = [...read.warnings];
+  if (read.progress.header.length > 0) preview.delimiter = delimiterNames[read.progress.delimiter];
+  preview.header = read.progress.header;
+  preview.warnings = [...read.progress.warnings];
   return preview;
 }
 
@@ -386,7 +387,7 @@ export async function startUpload(
   kind: ImportKind,
   mode: ImportMode,
 ): Promise<ImportBatchRecord> {
-  const head = await previewImport(createReadStream(upload.path), kind, actor, upload.originalName);
+  const head = await previewImport(upload.path, kind, actor, upload.originalName);
   if (head.fileError) {
     await rm(upload.path, { force: true });
     throw new AppError('bad_request', head.fileError.message, 400, { code: head.fileError.code });
@@ -654,8 +655,4 @@ export async function importReviewRows(
     null,
   );
   return outcome.status === 'succeeded' ? outcome.counters : zeroCounters();
-}
-
-export function uploadReadable(filePath: string): Readable {
-  return createReadStream(filePath);
 }

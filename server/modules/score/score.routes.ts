@@ -11,7 +11,12 @@ export const scoreRoutes = [
       'Score items (count + mean, a star histogram, or individual reviews) with the naive and smoothed orderings, recency, quality and drift',
     access: access.roles(['admin', 'ops', 'manager', 'analyst', 'exec'], { tokens: true }),
     body: scoreRequestSchema,
+    bodyInWorker: true,
     response: scoreResponseSchema,
-    handler: (req, _res, { body }) => scoreItems(req.actor!, body),
+    handler: async (req, res) => {
+      const json = await scoreItems(req.actor!, req, res);
+      res.type('json').send(Buffer.from(json.buffer, json.byteOffset, json.byteLength));
+      return undefined;
+    },
   }),
 ];

@@ -22,7 +22,7 @@ import { db } from '../../db/sequelize';
 import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
 import type { CategoryRef } from '../categories/categories.service';
-import { toCsv, type CsvColumn } from '../imports/csv-safe';
+import { toCsvInSlices, type CsvColumn } from '../imports/csv-safe';
 
 /** How many weeks of figures the portfolio's trend lines show. */
 export const portfolioTrendWeeks = 12;
@@ -339,7 +339,7 @@ export async function exportStandingsCsv(
   const { rows } = await selectStandings(snapshot, query, null);
   const filtered = query.flags || query.q || query.driftMin !== undefined || query.driftMax !== undefined;
   const fileName = `ballast-${category.slug}-${snapshot.summary.isoWeek}-standings${filtered ? '-filtered' : ''}.csv`;
-  return { fileName, csv: toCsv(rows, csvColumns(snapshot.params), { bom: true }) };
+  return { fileName, csv: await toCsvInSlices(rows, csvColumns(snapshot.params), { bom: true }) };
 }
 
 /** Naive against smoothed rank for every item of the week, as parallel arrays. */

@@ -1,7 +1,13 @@
 import { Readable } from 'node:stream';
 import { parse } from 'csv-parse/sync';
 import { describe, expect, it } from 'vitest';
-import { neutraliseCell, rejectedRowsCsv, toCsv } from '../../../server/modules/imports/csv-safe';
+import {
+  CSV_SLICE_ROWS,
+  neutraliseCell,
+  rejectedRowsCsv,
+  toCsv,
+  toCsvInSlices,
+} from '../../../server/modules/imports/csv-safe';
 import { collectImport } from '../../../server/modules/imports/import-parser';
 
 describe('neutraliseCell', () => {
@@ -72,5 +78,34 @@ describe('rejectedRowsCsv', () => {
         `'=1+1,KB-1,Kettle,kettles,9,2026-01-01,fine`,
       ],
     ]);
+  });
+});
+
+describe('toCsvInSlices', () => {
+  type Row = { id: number; text: string };
+  const columns = [
+    { header: 'id', value: 'id' as const },
+    { header: 'text', value: 'text' as const },
+  ];
+  const rows: Row[] = Array.from({ length: 2_500 }, (_, i) => ({
+    id: i,
+    text: ['plain', 'with, comma', 'with "quotes"', 'two\nlines', '=formula', 'crlf\r\nend'][i % 6]!,
+  }));
+
+  it('writes exactly the text toCsv writes, with and without a byte order mark, and for no rows', async () => {
+    expect(await toCsvInSlices(rows, columns, { bom: true })).toBe(toCsv(rows, columns, { bom: true }));
+    expect(await toCsvInSlices(rows, columns)).toBe(toCsv(rows, columns));
+    expect(await toCsvInSlices([], columns, { bom: true })).toBe(toCsv([], columns, { bom: true }));
+    expect(await toCsvInSlices(rows.slice(0, CSV_SLICE_ROWS), columns)).toBe(
+      toCsv(rows.slice(0, CSV_SLICE_ROWS), columns),
+    );
+  });
+
+  it('lets the event loop run other work between slices', async () => {
+    const order: string[] = [];
+    const csv = toCsvInSlices(rows, columns).then(() => order.push('csv'));
+    setImmediate(() => order.push('other'));
+    await csv;
+    expect(order).toEqual(['other', 'csv']);
   });
 });

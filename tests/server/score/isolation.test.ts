@@ -1,11 +1,14 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { Category, Snapshot } from '../../../server/db/models';
 import { setupTestApp, type Agent, type TestApp } from '../../helpers/test-app';
+import { demoWithSnapshots } from '../digests/demo-weeks';
 
 // One worker, no waiting room and one heavy request per caller, so every limit is reached on purpose.
 let t: TestApp;
 let analyst: Agent;
 let manager: Agent;
+let admin: Agent;
 beforeAll(async () => {
   t = await setupTestApp({
     BALLAST_WORKERS: '1',
@@ -14,6 +17,8 @@ beforeAll(async () => {
   });
   analyst = await t.signIn('analyst');
   manager = await t.signIn('manager');
+  admin = await t.signIn('admin');
+  await demoWithSnapshots(1);
 });
 afterAll(async () => t.close());
 
@@ -93,6 +98,13 @@ describe('heavy requests and everyone else', () => {
     expect(Number(again.headers['retry-after'])).toBeGreaterThan(0);
     expect(again.body.error.code).toBe('too_many_requests');
     expect(again.body.error.message).toMatch(/heavy requests running/);
+    // The limit comes before the body is read: a body no one parsed on the event loop, even a broken one.
+    const broken = await analyst
+      .post('/api/score')
+      .set('x-csrf-token', analyst.csrf)
+      .set('content-type', 'application/json')
+      .send('{"items": [');
+    expect(broken.status).toBe(429);
 
     // Another person is not held to the analyst's limit, but the one worker is busy and nothing may wait.
     const other = await manager.post('/api/score').set('x-csrf-token', manager.csrf).send(smallBody);
@@ -107,6 +119,61 @@ describe('heavy requests and everyone else', () => {
       .send(smallBody)
       .expect(200);
     expect(after.body.items).toHaveLength(2);
+    // Parsed in the worker, a broken body answers as express.json answers one (error-handler.ts).
+    const unreadable = await analyst
+      .post('/api/score')
+      .set('x-csrf-token', analyst.csrf)
+      .set('content-type', 'application/json')
+      .send('{"items": [')
+      .expect(400);
+    expect(unreadable.body.error).toEqual({
+      code: 'bad_request',
+      message: 'The request body is not valid JSON.',
+    });
     expect(await heavyNow()).toEqual({ running: 0, queued: 0 });
+  });
+
+  it('parses an import preview in the worker pool: refused with 503 while the one worker is busy', async () => {
+    const heavy = await startHeavy(analyst);
+    const preview = () =>
+      admin
+        .post('/api/imports/preview')
+        .set('x-csrf-token', admin.csrf)
+        .field('kind', 'reviews')
+        .attach('file', Buffer.from('sku,title\n'), 'one.csv');
+    const busy = await preview();
+    expect(heavy.state.done).toBe(false);
+    expect(busy.status).toBe(503);
+    expect(busy.body.error.code).toBe('server_busy');
+    expect((await heavy.response).status).toBe(200);
+    const read = await preview().expect(200);
+    expect(read.body.fileError.code).toBe('missing_column');
+  });
+
+  it('renders a digest in the worker pool: it waits for the busy worker instead of being refused', async () => {
+    const snapshot = await Snapshot.findOne({ order: [['isoWeek', 'DESC']] });
+    const category = await Category.findByPk(snapshot!.categoryId);
+    const heavy = await startHeavy(analyst);
+    const state = { done: false };
+    const produced = admin
+      .post('/api/digests/produce')
+      .set('x-csrf-token', admin.csrf)
+      .send({ isoWeek: snapshot!.isoWeek, categories: [category!.slug], mail: false })
+      .then((res) => {
+        state.done = true;
+        return res;
+      });
+    // The rendering is queued behind the score request: the pool reports it waiting (bounded poll).
+    for (let tries = 0; ((await heavyNow())?.queued ?? 0) < 1; tries++) {
+      if (tries > 2_000 || state.done) throw new Error('the digest never waited for the worker pool');
+      await new Promise((resolve) => setTimeout(resolve, 25));
+    }
+    expect(heavy.state.done).toBe(false);
+    expect((await heavy.response).status).toBe(200);
+    const res = await produced;
+    expect(res.status).toBe(200);
+    expect(res.body.digests.some((d: { category: string | null }) => d.category === category!.slug)).toBe(
+      true,
+    );
   });
 });
