@@ -21,7 +21,7 @@ function invented(size: number, seed = 7) {
 }
 
 export async function run(): Promise<void> {
-  for (const size of [2_000, 10_000, 50_000]) {
+  for (const size of [2_000, 20_000, 50_000]) {
     const { items, observed } = invented(size);
     let peak = process.memoryUsage().rss;
     const timer = setInterval(() => (peak = Math.max(peak, process.memoryUsage().rss)), 50);
