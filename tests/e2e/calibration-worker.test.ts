@@ -1,10 +1,11 @@
+import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { calibrate, type ItemInput, type ScoringSettings } from '../../shared/scoring';
 import type { WhatIfEvidence } from '../../shared/schemas/standings.schema';
 import { closeDatabase, db } from '../../server/db/sequelize';
 import { demoAccounts, seedDemo } from '../../server/runtime/seed';
-import { launchBrowser } from '../helpers/browser';
+import { launchBrowser, screenshotDir } from '../helpers/browser';
 import { loadDemoForTests } from '../helpers/demo-data';
 import { startServerProcess, type ServerProcess } from '../helpers/server-process';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
@@ -123,6 +124,7 @@ describe('calibration in a Web Worker', () => {
     const bar = page.getByRole('progressbar', { name: 'Calibration progress' });
     await bar.waitFor();
     await until(async () => Number(await bar.getAttribute('aria-valuenow')) > 0, 'progress above 0');
+    await page.screenshot({ path: path.join(screenshotDir, 'calibrate-progress.png') });
     // The page answers while the search runs: the textarea still takes focus and reports its value.
     expect(
       await page.getByLabel('Skus, best first').evaluate((el) => (el as HTMLTextAreaElement).value.length),
