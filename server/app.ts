@@ -45,6 +45,8 @@ export function createApp({ config, sequelize }: AppDeps): Express {
           'img-src': ["'self'", 'data:', 'blob:'],
           'font-src': ["'self'", 'data:'],
           'connect-src': ["'self'"],
+          // The calibration screen's Web Worker is a script of this origin.
+          'worker-src': ["'self'"],
           'frame-src': ["'self'"],
           'object-src': ["'none'"],
           'frame-ancestors': ["'self'"],

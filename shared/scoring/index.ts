@@ -1,8 +1,12 @@
-export { calibrate } from './calibration';
+export { calibrate, searchPriorWeight } from './calibration';
 export type {
   CalibrationOptions,
   CalibrationResult,
   CurveStep,
+  PriorWeightLines,
+  PriorWeightSearch,
+  PriorWeightSearchOptions,
+  PriorWeightStep,
   StrategyOnCurve,
   UnexplainedItem,
 } from './calibration';

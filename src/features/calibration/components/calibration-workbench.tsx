@@ -1,11 +1,6 @@
 import { useId, useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
-import {
-  calibrate,
-  type CalibrationResult,
-  type ItemSummary,
-  type ScoringSettings,
-} from '../../../../shared/scoring';
+import type { CalibrationResult, ItemInput, ItemSummary, ScoringSettings } from '../../../../shared/scoring';
 import { keyOf } from '../../../../shared/keys';
 import { countOf } from '../../../../shared/plural';
 import type { WhatIfEvidence } from '../../../../shared/schemas/standings.schema';
@@ -15,6 +10,7 @@ import { EmptyState, ErrorPanel, Loading, errorMessage } from '../../../componen
 import { fmt } from '../../../lib/format';
 import { useCalibrationNotes } from '../api/get-calibration-notes';
 import { useSaveCalibrationNote } from '../api/save-calibration-note';
+import { useCalibrationRun } from '../worker/use-calibration-run';
 import { AgreementCurve } from './agreement-curve';
 import { parseObservedLines, summarizeObserved } from './observed-summary';
 
@@ -33,7 +29,7 @@ const interval = (start: number, end: number | null) =>
 
 /**
  * DESIGN §4.8 in the browser: the observed ordering against the week's evidence, fitted over every swap
- * point of the prior weight with the shared engine's calibrate.
+ * point of the prior weight with the shared engine's calibrate, in a Web Worker (progress, cancel).
  */
 export function CalibrationWorkbench({
   slug,
@@ -51,7 +47,6 @@ export function CalibrationWorkbench({
   const [fixes, setFixes] = useState<Record<string, string>>({});
   const [dropped, setDropped] = useState<Set<string>>(new Set());
   const [result, setResult] = useState<{ value: CalibrationResult; observed: number } | null>(null);
-  const [runError, setRunError] = useState<string | null>(null);
   const [note, setNote] = useState('');
   const notes = useCalibrationNotes(slug);
   const save = useSaveCalibrationNote(slug);
@@ -67,18 +62,23 @@ export function CalibrationWorkbench({
   const summary = summarizeObserved(lines, known, fixes, dropped);
   const { unknown, unresolved, matched: mapped } = summary;
 
+  const readLines = summary.read;
+  const {
+    run: calibration,
+    start,
+    cancel,
+  } = useCalibrationRun((value) => setResult({ value, observed: readLines }));
+  const running = calibration.state === 'running';
+  const runError = calibration.state === 'failed' ? calibration.message : null;
   const run = () => {
-    setRunError(null);
-    try {
-      const value = calibrate(items, mapped, evidence.settings as unknown as Partial<ScoringSettings>, {
-        asOf: evidence.asOf,
-        unexplainedCount: 10,
-      });
-      setResult({ value, observed: summary.read });
-    } catch (err) {
-      setResult(null);
-      setRunError(errorMessage(err));
-    }
+    setResult(null);
+    start({
+      items: items as unknown as ItemInput[],
+      observed: mapped,
+      settings: evidence.settings as unknown as Partial<ScoringSettings>,
+      asOf: evidence.asOf,
+      unexplainedCount: 10,
+    });
   };
 
   const r = result?.value;
@@ -104,6 +104,7 @@ export function CalibrationWorkbench({
               onChange={(e) => {
                 setText(e.target.value);
                 setResult(null);
+                cancel();
               }}
               className="mt-1 w-full rounded-md border border-ink-200 bg-white px-2 py-1.5 font-mono text-sm"
               placeholder={'TP-2031\nTP-2004\nTP-2077\n…'}
@@ -125,6 +126,7 @@ export function CalibrationWorkbench({
                     void file.text().then((content) => {
                       setText(content);
                       setResult(null);
+                      cancel();
                     });
                 }}
               />
@@ -149,9 +151,37 @@ export function CalibrationWorkbench({
               ) : null}
               .
             </p>
-            <Button onClick={run} disabled={mapped.length < 2}>
-              Run calibration
-            </Button>
+            <div className="flex flex-wrap items-center gap-2">
+              <Button onClick={run} disabled={mapped.length < 2 || running}>
+                Run calibration
+              </Button>
+              {running ? (
+                <Button variant="quiet" onClick={cancel}>
+                  Cancel
+                </Button>
+              ) : null}
+            </div>
+            {running ? (
+              <div className="space-y-1" data-testid="calibration-progress">
+                <div
+                  role="progressbar"
+                  aria-label="Calibration progress"
+                  aria-valuemin={0}
+                  aria-valuemax={100}
+                  aria-valuenow={Math.round(calibration.share * 100)}
+                  className="h-2 w-full overflow-hidden rounded-full bg-ink-100"
+                >
+                  <div
+                    className="h-full bg-kelp-500 transition-[width]"
+                    style={{ width: `${Math.round(calibration.share * 100)}%` }}
+                  />
+                </div>
+                <p className="text-xs text-ink-500">
+                  Searching the swap points in the background: {Math.round(calibration.share * 100)}% done.
+                  The page stays usable; Cancel stops the search.
+                </p>
+              </div>
+            ) : null}
             {runError ? (
               <p role="alert" className="text-sm text-coral-500">
                 {runError}
