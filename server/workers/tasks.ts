@@ -1,8 +1,13 @@
 import {
   calibrate,
   scoreRequest,
+  scoreWithRankIntervals,
   ScoringInputError,
   type ItemInput,
+  type PreviousRankingEntry,
+  type RankIntervalOptions,
+  type RankIntervalResult,
+  type ScoreResult,
   type ScoringSettings,
 } from '../../shared/scoring';
 import { SCORE_PAGE_MAX, type ScoreRequest } from '../../shared/schemas/score.schema';
@@ -41,7 +46,19 @@ export function scorePage(request: ScoreRequest, now: Date): ScorePage {
   };
 }
 
-export type WorkerTask = CalibrateTask | ScoreTask;
+/** A snapshot's scoring and rank sampling, off the event loop that runs the scheduler and the API. */
+export interface SnapshotScoreTask {
+  kind: 'snapshot-score';
+  items: ItemInput[];
+  settings: Partial<ScoringSettings>;
+  asOf: string;
+  previous: PreviousRankingEntry[] | null;
+  ranks: RankIntervalOptions;
+}
+
+export type SnapshotScore = { result: ScoreResult; intervals: RankIntervalResult };
+
+export type WorkerTask = CalibrateTask | ScoreTask | SnapshotScoreTask;
 
 /** An input error crosses the thread boundary as plain data; the service turns it back into a 400. */
 export type ScoreOutcome =
@@ -50,6 +67,13 @@ export type ScoreOutcome =
 /** Runs in a worker thread: the CPU-heavy part only, plain data in and out. */
 export default function runTask(task: WorkerTask) {
   switch (task.kind) {
+    case 'snapshot-score':
+      return scoreWithRankIntervals(
+        task.items,
+        task.settings,
+        { asOf: task.asOf, previous: task.previous },
+        task.ranks,
+      ) satisfies SnapshotScore;
     case 'calibrate':
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
     case 'score':
