@@ -26,7 +26,7 @@ import type { ItemInput, ResolvedParameters, ScoreResult } from './types';
  *
  * Memory kept: never the S x N matrix of draws. Per item one rank histogram in log-linear bins
  * (HdrHistogram's layout, Tene 2012): ranks 1..2H each have their own bin, beyond that bins are at most
- * 1/H of the rank wide, so N x B 16- or 32-bit counters with B = H*(floor(log2 N) - log2 H + 2); H is 64
+ * 1/H of the rank wide, so N x B 16-bit counters (S at most 65,535) with B = H*(floor(log2 N) - log2 H + 2); H is 64
  * unless that would pass 64 MiB (20,000 items: 640 bins, 25.6 MB). Plus O(N) typed arrays for one draw.
  * Quantiles in a wide bin are widened to its edges, so a reported interval is never narrower than the
  * sampled one.
@@ -287,8 +287,9 @@ export function binEdges(bin: number, H: number): [number, number] {
 
 function checkOptions(options: RankIntervalOptions): Required<RankIntervalOptions> {
   const o = { ...defaultRankIntervalOptions, ...options };
-  if (!Number.isInteger(o.draws) || o.draws < 10 || o.draws > 1_000_000)
-    throw new RangeError('draws must be a whole number from 10 to 1,000,000');
+  // 16-bit counters: at most 65,535 draws.
+  if (!Number.isInteger(o.draws) || o.draws < 10 || o.draws > 0xffff)
+    throw new RangeError('draws must be a whole number from 10 to 65,535');
   if (!Number.isInteger(o.seed) || o.seed < 0 || o.seed > 0xffffffff)
     throw new RangeError('seed must be a whole number from 0 to 4294967295');
   if (!(o.level > 0 && o.level < 1)) throw new RangeError('level must be between 0 and 1');
@@ -309,9 +310,8 @@ export function sampleRankIntervals(
   const o = checkOptions(options);
   const size = plan.size;
   const S = o.draws;
-  const countBytes = S <= 0xffff ? 2 : 4;
-  const { octave: H, log2H, bins } = binLayout(size, countBytes);
-  const hist = countBytes === 2 ? new Uint16Array(size * bins) : new Uint32Array(size * bins);
+  const { octave: H, log2H, bins } = binLayout(size, 2);
+  const hist = new Uint16Array(size * bins);
   const top = new Uint32Array(size);
   const ahead = new Float64Array(size);
   const above = new Int32Array(size).fill(-1);
