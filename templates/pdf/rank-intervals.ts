@@ -54,11 +54,11 @@ export function rankIntervalBars(c: Canvas, items: DigestItem[]): void {
       align: 'right',
     });
     c.text(c.fit(item.sku, labelWidth - 6, 'mono', 7), c.left + 26, y - 3.5, { style: 'mono', size: 7 });
-    c.text(rankWords.range(item.rankLow!, item.rankHigh!), x0 - 28, y - 3.5, {
+    c.text(rankWords.range(item.rankLow!, item.rankHigh!), x0 - 40, y - 3.5, {
       style: 'mono',
       size: 6.5,
       colour: colours.ink500,
-      width: 26,
+      width: 36,
       align: 'right',
     });
     const a = px(item.rankLow!);
