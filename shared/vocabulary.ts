@@ -22,6 +22,12 @@ export const standingsColumns = {
   clusterReason: { label: 'Why a cluster', csv: 'cluster_reason' },
   priorWeight: { label: 'm', csv: 'prior_weight_m' },
   priorWeightApplied: { label: 'Strategy applied', csv: 'prior_weight_strategy_applied' },
+  rankRange: { label: 'Rank range', csv: 'rank_range_90' },
+  rankMedian: { label: 'Median rank', csv: 'rank_median' },
+  rankLow: { label: 'Rank range from', csv: 'rank_range_from' },
+  rankHigh: { label: 'Rank range to', csv: 'rank_range_to' },
+  topShare: { label: 'Chance of top 10', csv: 'top10_chance' },
+  aboveAheadShare: { label: 'Chance the item above is ahead', csv: 'above_ahead_chance' },
 } as const;
 export type StandingsColumn = keyof typeof standingsColumns;
 
@@ -41,6 +47,31 @@ export const terms = {
   drift: 'Drift = naive rank − smoothed rank',
   ties: 'Ranks use standard competition ranking: tied scores share a rank and the next rank is skipped (1, 2, 2, 4). Within a tie the list shows the item with more reviews first, then by SKU; that order does not change the rank.',
 } as const;
+
+/**
+ * Rank intervals (shared/scoring/rank-intervals.ts): the words beside a rank and a week's move. A move is
+ * clear when last week's and this week's 90 % rank ranges do not overlap: the item's place changed by
+ * more than either week's evidence can explain; otherwise it is within the noise.
+ */
+export const rankWords = {
+  range: (low: number, high: number): string => (low === high ? `${low}` : `${low}–${high}`),
+  meaning: (level: number): string =>
+    `Rank range: with the evidence so far, the item's true place lies in this range with ${Math.round(level * 100)} % probability (5th to 95th percentile of ranks over posterior draws).`,
+  clearMove: 'clear move',
+  withinNoise: 'within the noise',
+  rule: 'A move is clear when the rank ranges of the two weeks do not overlap.',
+  chartBand: (level: number): string => `${Math.round(level * 100)} % rank range`,
+  pdfTitle: 'How sure each rank is',
+} as const;
+
+/** Clear when the two weeks' rank ranges do not overlap; null when either week has none. */
+export function moveClarity(
+  before: { low: number | null; high: number | null },
+  after: { low: number | null; high: number | null },
+): 'clear' | 'noise' | null {
+  if (before.low === null || before.high === null || after.low === null || after.high === null) return null;
+  return before.high < after.low || after.high < before.low ? 'clear' : 'noise';
+}
 
 /** What a person calls a field of a form or setting; an error message names this, never a field path. */
 export const fieldLabels: Record<string, string> = {

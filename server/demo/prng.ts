@@ -1,14 +1,6 @@
-/** mulberry32: a small, fast 32-bit PRNG; the demo must come out the same on every machine. */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 } from '../../shared/scoring/random';
+
+export { mulberry32 };
 
 /** FNV-1a, to derive an independent stream per item from the scenario seed and a name. */
 export function hashString(text: string): number {

@@ -3,8 +3,13 @@ import { Tinypool } from 'tinypool';
 import {
   calibrate,
   scoreRequest,
+  scoreWithRankIntervals,
   ScoringInputError,
   type ItemInput,
+  type PreviousRankingEntry,
+  type RankIntervalOptions,
+  type RankIntervalResult,
+  type ScoreResult,
   type ScoringSettings,
 } from '../../shared/scoring';
 import { SCORE_PAGE_MAX, scoreRequestSchema, type ScoreRequest } from '../../shared/schemas/score.schema';
@@ -60,6 +65,18 @@ export type DigestTask =
   | { kind: 'digest'; digest: 'category'; data: CategoryDigestData; paper: PaperSize }
   | { kind: 'digest'; digest: 'portfolio'; data: PortfolioDigestData; paper: PaperSize };
 
+/** A snapshot's scoring and rank sampling, off the event loop that runs the scheduler and the API. */
+export interface SnapshotScoreTask {
+  kind: 'snapshot-score';
+  items: ItemInput[];
+  settings: Partial<ScoringSettings>;
+  asOf: string;
+  previous: PreviousRankingEntry[] | null;
+  ranks: RankIntervalOptions;
+}
+
+export type SnapshotScore = { result: ScoreResult; intervals: RankIntervalResult };
+
 /** The PDF's bytes (a few hundred KB, copied back to the event loop) and its page count. */
 export type RenderedDigest = { pdf: Uint8Array; pages: number };
 
@@ -107,7 +124,7 @@ async function readPreview(task: PreviewTask): Promise<PreviewRead> {
   return { records, progress: parse.progress, fileError };
 }
 
-export type WorkerTask = CalibrateTask | ScoreTask | DigestTask | PreviewTask;
+export type WorkerTask = CalibrateTask | ScoreTask | DigestTask | PreviewTask | SnapshotScoreTask;
 
 /**
  * The answer's JSON as bytes moved (not copied) to the event loop, which sends them as they are; an input
@@ -134,6 +151,13 @@ function scoreBody(task: ScoreTask): ScoreOutcome {
 /** Runs in a worker thread: the CPU-heavy part only, plain data in and out. */
 export default function runTask(task: WorkerTask) {
   switch (task.kind) {
+    case 'snapshot-score':
+      return scoreWithRankIntervals(
+        task.items,
+        task.settings,
+        { asOf: task.asOf, previous: task.previous },
+        task.ranks,
+      ) satisfies SnapshotScore;
     case 'calibrate':
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
     case 'score':

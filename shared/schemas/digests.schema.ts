@@ -38,6 +38,10 @@ export type DigestItem = {
   reviewsToPass: number | null;
   aboveSku: string | null;
   aboveScore: number | null;
+  /** 90 % rank range of the smoothed rank and its median; null (or absent) before rank intervals existed. */
+  rankLow?: number | null;
+  rankMedian?: number | null;
+  rankHigh?: number | null;
 };
 
 /** The figures of the week before, for "what changed" and the portfolio comparison. */
@@ -53,6 +57,8 @@ export type DigestPreviousWeek = {
   thinCount: number;
   clusterCount: number;
   topTen: string[];
+  /** Last week's rank ranges of this week's movers, by sku; absent where none was stored. */
+  moverRanges?: Record<string, { low: number; high: number }>;
 };
 
 /** Everything the category digest layout needs, computed by the digests service. */
@@ -68,6 +74,8 @@ export type CategoryDigestData = {
   figures: CategoryFigures;
   params: ResolvedParameters;
   previous: DigestPreviousWeek | null;
+  /** Level of the stored rank ranges; null or absent before they existed. */
+  rankLevel?: number | null;
   /** Sorted by smoothed position. */
   items: DigestItem[];
   /** Plain sentences: the headline of the week and what changed since the week before. */

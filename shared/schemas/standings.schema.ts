@@ -23,6 +23,7 @@ export const standingsSortColumns = [
   'lowerBound',
   'newestAgeDays',
   'smoothedMovement',
+  'rankRange',
   'sku',
   'title',
 ] as const;
@@ -99,6 +100,12 @@ export const standingsRowSchema = z.object({
   staleReason: z.string().nullable(),
   clusterReason: z.string().nullable(),
   reviewsToPass: reviewsNeededSchema.nullable(),
+  /** 90 % rank range of the smoothed rank and its median; null on snapshots taken before they existed. */
+  rankLow: z.number().int().nullable(),
+  rankMedian: z.number().int().nullable(),
+  rankHigh: z.number().int().nullable(),
+  topShare: z.number().nullable(),
+  aboveAheadShare: z.number().nullable(),
 });
 export type StandingsRow = z.infer<typeof standingsRowSchema>;
 
@@ -112,6 +119,8 @@ export const standingsSchema = z.object({
   thinThreshold: z.number(),
   staleAfterDays: z.number(),
   moverThreshold: z.number(),
+  /** Level, draws S and seed of the rank ranges; null for weeks taken before they existed. */
+  rankIntervals: z.object({ level: z.number(), draws: z.number().int(), seed: z.number().int() }).nullable(),
   total: z.number().int(),
   page: z.number().int(),
   pageSize: z.number().int(),
@@ -175,6 +184,10 @@ export const itemDetailSchema = z.object({
       lowerBound: z.number().nullable(),
       decayedMean: z.number().nullable(),
       helpfulMean: z.number().nullable(),
+      /** The week's rank range of the smoothed rank; null before rank intervals existed. */
+      rankLow: z.number().int().nullable(),
+      rankHigh: z.number().int().nullable(),
+      rankLevel: z.number().nullable(),
     }),
   ),
   current: z

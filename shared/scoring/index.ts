@@ -46,3 +46,15 @@ export {
 export { summariseReviews, toColumns } from './summary';
 export type { EvidenceColumns, SummarySettings } from './summary';
 export type * from './types';
+export {
+  defaultRankIntervalOptions,
+  meanDrawer,
+  posteriorKinds,
+  posteriorPlan,
+  rankDraw,
+  sampleRankIntervals,
+  scoreWithRankIntervals,
+  smoothedListing,
+} from './rank-intervals';
+export type { MeanDrawer, PosteriorPlan, RankIntervalOptions, RankIntervalResult } from './rank-intervals';
+export { mulberry32 } from './random';

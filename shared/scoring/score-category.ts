@@ -12,10 +12,12 @@ import type { ScoringSettings } from './settings';
 import { reviewsToPass } from './smoothing';
 import { conditionalRateTest } from './stats';
 import { DAY_MS, toColumns, toEpochMs } from './summary';
+import type { EvidenceColumns } from './summary';
 import type {
   CategoryFigures,
   ItemInput,
   ItemResult,
+  LowerBoundBasis,
   Mover,
   PreviousRankingEntry,
   ScoreResult,
@@ -28,8 +30,48 @@ export interface ScoreOptions {
 }
 
 /** Ratings 1..5: no variance can exceed (mean - 1)(5 - mean) (Bhatia–Davis bound). */
-function varianceBound(mean: number): number {
+export function varianceBound(mean: number): number {
   return Math.max(0, (mean - 1) * (5 - mean));
+}
+
+/** Within-item star variance behind the lower bound: own histogram, else pooled, else Bhatia–Davis. */
+export function itemSpread(
+  cols: EvidenceColumns,
+  i: number,
+  rawMean: number,
+  pooledWithin: number | null,
+): { itemVar: number; basis: LowerBoundBasis } {
+  const ni = cols.n[i]!;
+  if (cols.hasHistogram[i]) {
+    let sq = 0;
+    for (let k = 0; k < 5; k++) sq += cols.histogram[i * 5 + k]! * (k + 1) * (k + 1);
+    return { itemVar: ni > 0 ? Math.max(0, sq / ni - rawMean * rawMean) : 0, basis: 'histogram' };
+  }
+  if (pooledWithin !== null) return { itemVar: pooledWithin, basis: 'pooled-variance' };
+  return { itemVar: ni > 0 ? varianceBound(rawMean) : 0, basis: 'variance-bound' };
+}
+
+/**
+ * Posterior variance of an item's mean star under the Dirichlet model of the lower bound (DESIGN 4.3):
+ * with a_k = m*p_k + n_k and a0 = m + n it is the second central moment of the pooled star shares
+ * a_k / a0 divided by (a0 + 1). Without a histogram the item's own spread is `itemVar` (pooled or the
+ * Bhatia–Davis bound). Zero when there is neither prior weight nor evidence.
+ */
+export function posteriorVariance(
+  m: number,
+  C: number,
+  priorVariance: number,
+  n: number,
+  rawMean: number,
+  itemVar: number,
+  smoothed: number,
+): number {
+  const a0 = m + n;
+  if (!(a0 > 0)) return 0;
+  const dc = C - smoothed;
+  const dr = n > 0 ? rawMean - smoothed : 0;
+  const predictive = (m * (priorVariance + dc * dc) + n * (itemVar + dr * dr)) / a0;
+  return predictive / (a0 + 1);
 }
 
 export function scoreCategory(
@@ -94,28 +136,8 @@ export function scoreCategory(
     const si = smooth[i]!;
     const hasRaw = ni > 0;
 
-    let itemVar: number;
-    let basis: ItemResult['lowerBoundBasis'];
-    if (hasHistogram[i]) {
-      let sq = 0;
-      for (let k = 0; k < 5; k++) sq += histogram[i * 5 + k]! * (k + 1) * (k + 1);
-      itemVar = ni > 0 ? Math.max(0, sq / ni - r * r) : 0;
-      basis = 'histogram';
-    } else if (pooledWithin !== null) {
-      itemVar = pooledWithin;
-      basis = 'pooled-variance';
-    } else {
-      itemVar = hasRaw ? varianceBound(r) : 0;
-      basis = 'variance-bound';
-    }
-    const a0 = m + ni;
-    let lowerBound = si;
-    if (a0 > 0) {
-      const dc = C - si;
-      const dr = hasRaw ? r - si : 0;
-      const predictive = (m * (priorVariance + dc * dc) + ni * (itemVar + dr * dr)) / a0;
-      lowerBound = si - s.z * Math.sqrt(predictive / (a0 + 1));
-    }
+    const { itemVar, basis } = itemSpread(cols, i, r, pooledWithin);
+    const lowerBound = si - s.z * Math.sqrt(posteriorVariance(m, C, priorVariance, ni, r, itemVar, si));
 
     const drift = naiveRanks[i]! - smoothRanks[i]!;
     const absDrift = Math.abs(drift);

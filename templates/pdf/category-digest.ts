@@ -1,6 +1,6 @@
 import { countOf } from '../../shared/plural';
 import type { CategoryDigestData, DigestItem, PaperSize } from '../../shared/schemas/digests.schema';
-import { priorWeightApplied, standingsColumns as label, terms } from '../../shared/vocabulary';
+import { priorWeightApplied, rankWords, standingsColumns as label, terms } from '../../shared/vocabulary';
 import {
   bullets,
   dash,
@@ -21,6 +21,7 @@ import {
   type Tile,
 } from './blocks';
 import { Canvas } from './canvas';
+import { rankedWithRanges, rankIntervalBars } from './rank-intervals';
 import { colours } from './theme';
 
 export type RenderedPdf = { pdf: Buffer; pages: number };
@@ -412,6 +413,16 @@ export async function renderCategoryDigest(data: CategoryDigestData, paper: Pape
     justOutside(data),
     { continued: 'What it would take' },
   );
+
+  const ranged = rankedWithRanges(data);
+  if (ranged.length > 0) {
+    c.newPage();
+    section(
+      rankWords.pdfTitle,
+      `The top ${ranged.length} items by smoothed score. ${rankWords.meaning(data.rankLevel ?? 0.9)} Where two bars overlap, the order of the two items is not settled by the evidence (Goldstein & Spiegelhalter 1996).`,
+    );
+    rankIntervalBars(c, ranged);
+  }
 
   c.newPage();
   section(

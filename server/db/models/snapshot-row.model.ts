@@ -49,6 +49,12 @@ export class SnapshotRow extends Model<InferAttributes<SnapshotRow>, InferCreati
   declare negativeCluster: boolean | null;
   declare reviewsToPass: number | null;
   declare details: SnapshotRowDetails;
+  /** Rank interval of the smoothed rank (shared/scoring/rank-intervals.ts); null on older snapshots. */
+  declare rankMedian: number | null;
+  declare rankLow: number | null;
+  declare rankHigh: number | null;
+  declare topShare: number | null;
+  declare aboveAheadShare: number | null;
 
   static initModel(sequelize: Sequelize): void {
     // A fresh object per attribute: Sequelize writes each attribute's column name into its definition,
@@ -81,6 +87,11 @@ export class SnapshotRow extends Model<InferAttributes<SnapshotRow>, InferCreati
         // A whole number that can pass 2^53: see migrations/20261202230200-widen-reviews-to-pass.ts.
         reviewsToPass: dbl(),
         details: { type: DataTypes.JSON, allowNull: false },
+        rankMedian: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        rankLow: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        rankHigh: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        topShare: dbl(),
+        aboveAheadShare: dbl(),
       },
       { sequelize, tableName: 'snapshot_rows', timestamps: false },
     );

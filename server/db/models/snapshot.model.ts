@@ -25,6 +25,11 @@ export class Snapshot extends Model<InferAttributes<Snapshot>, InferCreationAttr
   declare clusterCount: number;
   declare params: ResolvedParameters;
   declare figures: CategoryFigures;
+  /** Rank intervals: seed, draws S, level and top k that reproduce them; null before they existed. */
+  declare rankSeed: number | null;
+  declare rankDraws: number | null;
+  declare rankLevel: number | null;
+  declare rankTopK: number | null;
 
   static initModel(sequelize: Sequelize): void {
     Snapshot.init(
@@ -45,6 +50,10 @@ export class Snapshot extends Model<InferAttributes<Snapshot>, InferCreationAttr
         clusterCount: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
         params: { type: DataTypes.JSON, allowNull: false },
         figures: { type: DataTypes.JSON, allowNull: false },
+        rankSeed: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        rankDraws: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        rankLevel: { type: DataTypes.DOUBLE, allowNull: true },
+        rankTopK: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
       },
       { sequelize, tableName: 'snapshots', timestamps: false },
     );

@@ -6,7 +6,7 @@ import type {
 } from '../../../shared/schemas/digests.schema';
 import type { CategoryFigures, ResolvedParameters } from '../../../shared/scoring';
 import { countOf } from '../../../shared/plural';
-import { terms } from '../../../shared/vocabulary';
+import { moveClarity, rankWords, terms } from '../../../shared/vocabulary';
 
 /** A title short enough for a sentence; tables cut by measured width instead. */
 export function shortTitle(title: string, max = 48): string {
@@ -41,6 +41,23 @@ type StoryInput = {
   items: DigestItem[];
   previous: DigestPreviousWeek | null;
 };
+
+/** Per mover with rank ranges in both weeks: clear when the ranges do not overlap (shared/vocabulary.ts). */
+export function moverClarity(
+  items: readonly DigestItem[],
+  previous: DigestPreviousWeek | null,
+): Map<string, 'clear' | 'noise'> {
+  const out = new Map<string, 'clear' | 'noise'>();
+  const ranges = previous?.moverRanges;
+  if (!ranges) return out;
+  for (const item of items) {
+    const before = ranges[item.sku];
+    if (!before) continue;
+    const c = moveClarity(before, { low: item.rankLow ?? null, high: item.rankHigh ?? null });
+    if (c) out.set(item.sku, c);
+  }
+  return out;
+}
 
 /** The week in plain sentences: what stands out now, and what changed since the week before. */
 export function buildStory({ figures: f, params, items, previous }: StoryInput): CategoryDigestData['story'] {
@@ -104,13 +121,33 @@ export function buildStory({ figures: f, params, items, previous }: StoryInput):
     const item = items.find((i) => i.sku === sku);
     return item ? named(item) : sku;
   };
+  const clarity = moverClarity(items, previous);
+  const judged = (sku: string) => {
+    const c = clarity.get(sku);
+    return c === 'clear' ? ` — ${rankWords.clearMove}` : c === 'noise' ? ` — ${rankWords.withinNoise}` : '';
+  };
   if (up && up.smoothedMovement > 0) {
     changes.push(
-      `Biggest rise by smoothed score: ${title(up.sku)}, up ${countOf(up.smoothedMovement, 'place')}.`,
+      `Biggest rise by smoothed score: ${title(up.sku)}, up ${countOf(up.smoothedMovement, 'place')}${judged(up.sku)}.`,
     );
   }
   if (down && down.smoothedMovement < 0) {
-    changes.push(`Biggest fall: ${title(down.sku)}, down ${countOf(-down.smoothedMovement, 'place')}.`);
+    changes.push(
+      `Biggest fall: ${title(down.sku)}, down ${countOf(-down.smoothedMovement, 'place')}${judged(down.sku)}.`,
+    );
+  }
+  const judgedMovers = f.movers.filter((m) => m.smoothedMovement !== 0 && clarity.has(m.sku));
+  if (judgedMovers.length > 0) {
+    const clear = judgedMovers.filter((m) => clarity.get(m.sku) === 'clear');
+    const listed = clear
+      .slice(0, 4)
+      .map((m) => `${title(m.sku)} ${m.smoothedMovement > 0 ? 'up' : 'down'} ${Math.abs(m.smoothedMovement)}`)
+      .join(', ');
+    changes.push(
+      clear.length === 0
+        ? `All ${countOf(judgedMovers.length, 'smoothed move')} of the week are ${rankWords.withinNoise}. ${rankWords.rule}`
+        : `${clear.length} of ${countOf(judgedMovers.length, 'smoothed move')} ${clear.length === 1 ? 'is a' : 'are'} ${clear.length === 1 ? rankWords.clearMove : `${rankWords.clearMove}s`}: ${listed}${clear.length > 4 ? ` and ${clear.length - 4} more` : ''}; the rest are ${rankWords.withinNoise}. ${rankWords.rule}`,
+    );
   }
   if (f.spearmanRho !== null && previous.spearmanRho !== null) {
     const d = f.spearmanRho - previous.spearmanRho;

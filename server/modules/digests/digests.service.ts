@@ -66,6 +66,9 @@ type RowRecord = {
   negative_cluster: number | boolean | null;
   reviews_to_pass: number | null;
   details: unknown;
+  rank_low: number | null;
+  rank_median: number | null;
+  rank_high: number | null;
 };
 
 type Details = {
@@ -84,7 +87,8 @@ async function snapshotItems(snapshotId: number): Promise<DigestItem[]> {
   const rows = await db().query<RowRecord>(
     `SELECT i.sku, i.title, sr.n, sr.raw_mean, sr.smoothed, sr.lower_bound, sr.naive_rank, sr.smoothed_rank,
             sr.drift, sr.naive_movement, sr.smoothed_movement, sr.newest_age_days, sr.median_age_days,
-            sr.recent_share, sr.one_star_share, sr.stale, sr.thin, sr.negative_cluster, sr.reviews_to_pass, sr.details
+            sr.recent_share, sr.one_star_share, sr.stale, sr.thin, sr.negative_cluster, sr.reviews_to_pass, sr.details,
+            sr.rank_low, sr.rank_median, sr.rank_high
      FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
      WHERE sr.snapshot_id = :snapshotId
      ORDER BY sr.smoothed_rank ASC, sr.n DESC, i.sku ASC`,
@@ -121,11 +125,18 @@ async function snapshotItems(snapshotId: number): Promise<DigestItem[]> {
       reviewsToPass: r.reviews_to_pass,
       aboveSku: d.aboveSku ?? null,
       aboveScore: d.aboveScore ?? null,
+      rankLow: r.rank_low,
+      rankMedian: r.rank_median,
+      rankHigh: r.rank_high,
     };
   });
 }
 
-async function previousWeek(categoryId: number, isoWeek: string): Promise<DigestPreviousWeek | null> {
+async function previousWeek(
+  categoryId: number,
+  isoWeek: string,
+  movers: readonly string[] = [],
+): Promise<DigestPreviousWeek | null> {
   const prev = await Snapshot.findOne({
     where: { categoryId, isoWeek: { [Op.lt]: isoWeek } },
     order: [['isoWeek', 'DESC']],
@@ -136,6 +147,17 @@ async function previousWeek(categoryId: number, isoWeek: string): Promise<Digest
      WHERE sr.snapshot_id = :id AND sr.smoothed_rank <= 10`,
     { replacements: { id: prev.id }, type: QueryTypes.SELECT },
   );
+  // Last week's rank ranges of this week's movers only: enough to tell a clear move from noise.
+  const ranges =
+    movers.length === 0
+      ? []
+      : await db().query<{ sku: string; rank_low: number | null; rank_high: number | null }>(
+          `SELECT i.sku, sr.rank_low, sr.rank_high FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
+           WHERE sr.snapshot_id = :id AND i.sku IN (:skus) AND sr.rank_low IS NOT NULL`,
+          { replacements: { id: prev.id, skus: [...movers] }, type: QueryTypes.SELECT },
+        );
+  const moverRanges: Record<string, { low: number; high: number }> = {};
+  for (const r of ranges) moverRanges[r.sku] = { low: Number(r.rank_low), high: Number(r.rank_high) };
   return {
     isoWeek: prev.isoWeek,
     itemCount: prev.itemCount,
@@ -148,6 +170,7 @@ async function previousWeek(categoryId: number, isoWeek: string): Promise<Digest
     thinCount: prev.thinCount,
     clusterCount: prev.clusterCount,
     topTen: top.map((t) => t.sku),
+    moverRanges,
   };
 }
 
@@ -164,7 +187,11 @@ export async function loadCategoryDigestData(
   const figures = json<CategoryFigures>(snapshot.figures);
   const params = json<ResolvedParameters>(snapshot.params);
   const items = await snapshotItems(snapshot.id);
-  const previous = await previousWeek(categoryId, isoWeek);
+  const previous = await previousWeek(
+    categoryId,
+    isoWeek,
+    figures.movers.map((m) => m.sku),
+  );
   return {
     category: { slug: category.slug, name: category.name, description: category.description ?? '' },
     isoWeek,
@@ -176,6 +203,7 @@ export async function loadCategoryDigestData(
     figures,
     params,
     previous,
+    rankLevel: snapshot.rankLevel,
     items,
     story: buildStory({ figures, params, items, previous }),
   };

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { QueryTypes, UniqueConstraintError } from 'sequelize';
 import {
   weekCutoff,
@@ -8,8 +9,8 @@ import {
   lastCompletedIsoWeek,
 } from '../../../shared/iso-week';
 import {
+  defaultRankIntervalOptions,
   resolveSettings,
-  scoreCategory,
   ScoringInputError,
   type ItemResult,
   type PreviousRankingEntry,
@@ -20,6 +21,8 @@ import { Category, Snapshot } from '../../db/models';
 import type { SnapshotRowDetails } from '../../db/models/snapshot-row.model';
 import { db } from '../../db/sequelize';
 import { AppError } from '../../lib/app-error';
+import { runInWorker } from '../../workers/pool';
+import type { SnapshotScore } from '../../workers/tasks';
 import { loadCategoryEvidence } from './snapshot-evidence';
 
 export type SnapshotOutcome = {
@@ -121,7 +124,20 @@ const rowColumns = [
   'negative_cluster',
   'reviews_to_pass',
   'details',
+  'rank_median',
+  'rank_low',
+  'rank_high',
+  'top_share',
+  'above_ahead_share',
 ];
+
+/**
+ * The rank sampler's seed for a category and week: the same week of the same category always draws the
+ * same stream, so a replaced snapshot reproduces its intervals exactly when the evidence has not changed.
+ */
+export function rankSeed(categoryId: number, isoWeek: string): number {
+  return createHash('sha256').update(`ballast-ranks/${categoryId}/${isoWeek}`).digest().readUInt32BE(0);
+}
 
 /**
  * Takes the snapshot of one category for one ISO week, as of the week's cut-off (Monday 00:00 UTC after
@@ -159,7 +175,15 @@ export async function takeSnapshot(options: TakeSnapshotOptions): Promise<Snapsh
     throw new AppError('bad_request', `${category.name} has no ratings before ${cutoff.toISOString()}.`, 400);
   }
   const previous = await previousRanking(category.id, isoWeek);
-  const result = scoreCategory(evidence.items, settings, { asOf: cutoff, previous });
+  const seed = rankSeed(category.id, isoWeek);
+  const { result, intervals } = await runInWorker<SnapshotScore>({
+    kind: 'snapshot-score',
+    items: evidence.items,
+    settings,
+    asOf: cutoff.toISOString(),
+    previous,
+    ranks: { ...defaultRankIntervalOptions, seed },
+  });
   log(
     `${category.slug} ${isoWeek}: ${result.items.length} items, m=${result.resolved.m.toFixed(2)}, C=${result.resolved.C.toFixed(3)}`,
   );
@@ -187,13 +211,20 @@ export async function takeSnapshot(options: TakeSnapshotOptions): Promise<Snapsh
           clusterCount: f.negativeClusterCount,
           params: result.resolved,
           figures: f,
+          rankSeed: intervals.seed,
+          rankDraws: intervals.draws,
+          rankLevel: intervals.level,
+          rankTopK: intervals.topK,
         },
         { transaction },
       );
       for (let start = 0; start < result.items.length; start += 1000) {
         const chunk = result.items.slice(start, start + 1000);
         const values: unknown[] = [];
-        for (const r of chunk) {
+        for (let k = 0; k < chunk.length; k++) {
+          const r = chunk[k]!;
+          const at = start + k;
+          const ahead = intervals.aboveAheadShare[at]!;
           const summary = summaryBySku.get(r.sku)!;
           values.push(
             snapshot.id,
@@ -220,6 +251,11 @@ export async function takeSnapshot(options: TakeSnapshotOptions): Promise<Snapsh
             r.negativeCluster,
             r.reviewsToPass,
             JSON.stringify(rowDetails(r, summary.histogram, summary.newestAt)),
+            intervals.medianRank[at],
+            intervals.lowerRank[at],
+            intervals.upperRank[at],
+            intervals.topShare[at],
+            Number.isNaN(ahead) ? null : ahead,
           );
         }
         const placeholders = chunk.map(() => `(${rowColumns.map(() => '?').join(',')})`).join(',');

@@ -15,7 +15,7 @@ import type {
   StandingsSort,
   WeekSummary,
 } from '../../../shared/schemas/standings.schema';
-import { priorWeightApplied, standingsColumns } from '../../../shared/vocabulary';
+import { priorWeightApplied, rankWords, standingsColumns } from '../../../shared/vocabulary';
 import { Category } from '../../db/models';
 import type { SnapshotRowDetails } from '../../db/models/snapshot-row.model';
 import { db } from '../../db/sequelize';
@@ -121,12 +121,26 @@ export async function listWeeks(category: CategoryRef): Promise<WeekSummary[]> {
   return rows.map(weekSummary);
 }
 
-export type WeekSnapshot = { id: number; summary: WeekSummary; cutoff: Date; params: ResolvedParameters };
+export type WeekSnapshot = {
+  id: number;
+  summary: WeekSummary;
+  cutoff: Date;
+  params: ResolvedParameters;
+  /** Level, S and seed of the week's rank intervals; null on weeks taken before they existed. */
+  ranks: { level: number; draws: number; seed: number } | null;
+};
 
 /** The snapshot of the asked week, or the latest one; 404 when the category has none. */
 export async function findWeek(category: CategoryRef, week?: string): Promise<WeekSnapshot> {
-  const [row] = await db().query<SnapshotFigureRow & { params: unknown }>(
-    `SELECT ${figureColumns}, s.params FROM snapshots s WHERE s.category_id = :categoryId
+  const [row] = await db().query<
+    SnapshotFigureRow & {
+      params: unknown;
+      rank_level: number | null;
+      rank_draws: number | null;
+      rank_seed: number | null;
+    }
+  >(
+    `SELECT ${figureColumns}, s.params, s.rank_level, s.rank_draws, s.rank_seed FROM snapshots s WHERE s.category_id = :categoryId
      ${week ? 'AND s.iso_week = :week' : ''} ORDER BY s.iso_week DESC LIMIT 1`,
     { replacements: { categoryId: category.id, week: week ?? null }, type: QueryTypes.SELECT },
   );
@@ -140,6 +154,10 @@ export async function findWeek(category: CategoryRef, week?: string): Promise<We
     summary: weekSummary(row),
     cutoff: new Date(row.cutoff),
     params: parseParams(row.params),
+    ranks:
+      row.rank_level === null || row.rank_draws === null || row.rank_seed === null
+        ? null
+        : { level: Number(row.rank_level), draws: Number(row.rank_draws), seed: Number(row.rank_seed) },
   };
 }
 
@@ -154,6 +172,8 @@ const sortSql: Record<StandingsSort, string> = {
   lowerBound: 'sr.lower_bound',
   newestAgeDays: 'sr.newest_age_days',
   smoothedMovement: 'sr.smoothed_movement',
+  // How sure the rank is: the width of the 90 % rank range, narrowest first (then by smoothed rank).
+  rankRange: '(sr.rank_high - sr.rank_low)',
   sku: 'i.sku',
   title: 'i.title',
 };
@@ -210,6 +230,11 @@ type StandingsSqlRow = {
   mover: number;
   reviews_to_pass: number | null;
   details: unknown;
+  rank_low: number | null;
+  rank_median: number | null;
+  rank_high: number | null;
+  top_share: number | null;
+  above_ahead_share: number | null;
 };
 
 const boolOrNull = (v: unknown): boolean | null =>
@@ -239,6 +264,11 @@ function toStandingsRow(r: StandingsSqlRow): StandingsRow {
     staleReason: details.staleReason,
     clusterReason: details.clusterReason,
     reviewsToPass: numOrNull(r.reviews_to_pass),
+    rankLow: numOrNull(r.rank_low),
+    rankMedian: numOrNull(r.rank_median),
+    rankHigh: numOrNull(r.rank_high),
+    topShare: numOrNull(r.top_share),
+    aboveAheadShare: numOrNull(r.above_ahead_share),
   };
 }
 
@@ -259,6 +289,7 @@ async function selectStandings(
     `SELECT i.sku, i.title, sr.n, sr.raw_mean, sr.smoothed, sr.lower_bound, sr.naive_rank, sr.smoothed_rank, sr.drift,
        sr.naive_movement, sr.smoothed_movement, sr.newest_age_days, sr.recent_share, sr.one_star_share,
        sr.stale, sr.thin, sr.negative_cluster, ${moverSql} AS mover, sr.reviews_to_pass, sr.details,
+       sr.rank_low, sr.rank_median, sr.rank_high, sr.top_share, sr.above_ahead_share,
        COUNT(*) OVER () AS total_rows
      FROM snapshot_rows sr JOIN items i ON i.id = sr.item_id
      WHERE ${where}
@@ -294,6 +325,7 @@ export async function getStandings(category: CategoryRef, query: StandingsQuery)
     thinThreshold: snapshot.params.thinEvidenceThreshold,
     staleAfterDays: snapshot.params.staleAfterDays,
     moverThreshold: snapshot.params.moverThreshold,
+    rankIntervals: snapshot.ranks,
     total,
     page: query.page,
     pageSize: query.pageSize,
@@ -328,6 +360,19 @@ const csvColumns = (params: ResolvedParameters): CsvColumn<StandingsRow>[] => [
   // The week's m and the strategy that set it, on every row so a filtered or pasted extract keeps them.
   { header: w.priorWeight.csv, value: () => params.m.toFixed(4) },
   { header: w.priorWeightApplied.csv, value: () => priorWeightApplied(params) },
+  // Rank intervals: empty on weeks snapshotted before they existed.
+  {
+    header: w.rankRange.csv,
+    value: (r) => (r.rankLow === null || r.rankHigh === null ? '' : rankWords.range(r.rankLow, r.rankHigh)),
+  },
+  { header: w.rankMedian.csv, value: 'rankMedian' },
+  { header: w.rankLow.csv, value: 'rankLow' },
+  { header: w.rankHigh.csv, value: 'rankHigh' },
+  { header: w.topShare.csv, value: (r) => (r.topShare === null ? '' : r.topShare.toFixed(4)) },
+  {
+    header: w.aboveAheadShare.csv,
+    value: (r) => (r.aboveAheadShare === null ? '' : r.aboveAheadShare.toFixed(4)),
+  },
 ];
 
 /** The whole filtered and sorted view (every page) as CSV, safe to open in a spreadsheet. */
@@ -423,6 +468,9 @@ export async function getFreshness(category: CategoryRef, week?: string, limit =
 }
 
 type TimelineSqlRow = {
+  rank_low: number | null;
+  rank_high: number | null;
+  rank_level: number | null;
   snapshot_id: number;
   iso_week: string;
   cutoff: Date;
@@ -518,7 +566,8 @@ export async function getItemDetail(
     `SELECT s.id AS snapshot_id, s.iso_week, s.cutoff, s.item_count, s.params, sr.n, sr.raw_mean, sr.smoothed, sr.lower_bound,
        sr.naive_rank, sr.smoothed_rank, sr.drift, sr.naive_movement, sr.smoothed_movement, sr.newest_age_days,
        sr.median_age_days, sr.recent_share, sr.decayed_mean, sr.effective_count, sr.helpful_mean, sr.one_star_share,
-       sr.stale, sr.thin, sr.negative_cluster, sr.reviews_to_pass, sr.details
+       sr.stale, sr.thin, sr.negative_cluster, sr.reviews_to_pass, sr.details,
+       sr.rank_low, sr.rank_high, s.rank_level
      FROM snapshots s LEFT JOIN snapshot_rows sr ON sr.snapshot_id = s.id AND sr.item_id = :itemId
      WHERE s.category_id = :categoryId ORDER BY s.iso_week`,
     { replacements: { itemId: item.id, categoryId: category.id }, type: QueryTypes.SELECT },
@@ -537,6 +586,9 @@ export async function getItemDetail(
     lowerBound: numOrNull(r.lower_bound),
     decayedMean: numOrNull(r.decayed_mean),
     helpfulMean: numOrNull(r.helpful_mean),
+    rankLow: numOrNull(r.rank_low),
+    rankHigh: numOrNull(r.rank_high),
+    rankLevel: numOrNull(r.rank_level),
   }));
   const present = rows.filter((r) => r.n !== null);
   const chosen = week ? present.find((r) => r.iso_week === week) : present.at(-1);

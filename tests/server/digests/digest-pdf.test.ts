@@ -1,4 +1,7 @@
+import { execFileSync } from 'node:child_process';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { rankWords } from '../../../shared/vocabulary';
 import { lastCompletedIsoWeek } from '../../../shared/iso-week';
 import { Category, Digest } from '../../../server/db/models';
 import { demoStory } from '../../../server/demo/scenario';
@@ -8,7 +11,7 @@ import {
   portfolioStory,
   produceDigests,
 } from '../../../server/modules/digests/digests.service';
-import { buildStory } from '../../../server/modules/digests/digest-story';
+import { buildStory, moverClarity } from '../../../server/modules/digests/digest-story';
 import { renderCategoryDigest } from '../../../templates/pdf/category-digest';
 import { priorWeightStrategyNames } from '../../../shared/vocabulary';
 import { num } from '../../../templates/pdf/blocks';
@@ -236,5 +239,68 @@ describe('produceDigests', () => {
     expect(stored!.pdf.subarray(0, 5).toString()).toBe('%PDF-');
     expect(stored!.sha256).toMatch(/^[0-9a-f]{64}$/);
     expect(stored!.pageCount).toBeGreaterThan(4);
+  });
+});
+
+describe('rank ranges in the digest (issue 19)', () => {
+  it('marks each move as clear or within the noise from both weeks’ ranges, and draws the top 30 as bars', async () => {
+    // The demo's largest category: where most moves happen.
+    const largest = (await Category.findAll()).map((c) => c.id);
+    const all = await Promise.all(largest.map((id) => loadCategoryDigestData(id, week, testDemoAsOf)));
+    const data = all.sort((a, b) => b.figures.itemCount - a.figures.itemCount)[0]!;
+    const clarity = moverClarity(data.items, data.previous);
+    const movers = data.figures.movers.filter((m) => m.smoothedMovement !== 0);
+    expect(movers.length).toBeGreaterThan(0);
+    expect(movers.every((m) => clarity.has(m.sku))).toBe(true);
+    // Recomputed here from the rule of shared/vocabulary.ts: clear only where the two ranges do not overlap.
+    for (const m of movers) {
+      const now = data.items.find((i) => i.sku === m.sku)!;
+      const before = data.previous!.moverRanges![m.sku]!;
+      const apart = before.high < now.rankLow! || now.rankHigh! < before.low;
+      expect(clarity.get(m.sku)).toBe(apart ? 'clear' : 'noise');
+    }
+    const clear = movers.filter((m) => clarity.get(m.sku) === 'clear').length;
+    console.log(
+      `[rank ranges] ${data.category.name} ${week}: ${clear} of ${movers.length} smoothed moves are clear moves`,
+    );
+    const line = data.story.changes.find((l) => l.includes('smoothed move'))!;
+    expect(line).toContain(rankWords.rule);
+    expect(line).toContain(rankWords.withinNoise);
+    const rise = data.story.changes.find((l) => l.startsWith('Biggest rise'));
+    if (rise) expect(rise).toMatch(/ — (clear move|within the noise)\.$/);
+
+    const { pdf } = await renderCategoryDigest(data, 'A4');
+    const pages = await pdfPages(pdf);
+    // The cover lists the section too: the page itself comes after it.
+    const at = pages.findIndex((p, k) => k > 0 && p.includes(rankWords.pdfTitle));
+    expect(at).toBeGreaterThan(0);
+    const page = pages[at]!.replace(/\s+/g, ' ');
+    const top = data.items.slice(0, Math.min(30, data.items.length));
+    for (const item of top) expect(page).toContain(item.sku);
+    expect(page).toContain(rankWords.range(top[0]!.rankLow!, top[0]!.rankHigh!));
+    saveArtefacts(`rank-ranges-${data.category.slug}`, pdf, 1);
+    execFileSync('pdftoppm', [
+      '-png',
+      '-r',
+      '80',
+      '-f',
+      String(at + 1),
+      '-l',
+      String(at + 1),
+      path.resolve('test-results', 'digests', `rank-ranges-${data.category.slug}.pdf`),
+      path.resolve('test-results', 'digests', `rank-ranges-${data.category.slug}-page`),
+    ]);
+  });
+
+  it('calls a move within the noise when the two weeks’ ranges overlap, and clear when they do not', () => {
+    const item = (sku: string, low: number, high: number) =>
+      ({ sku, rankLow: low, rankHigh: high }) as unknown as Parameters<typeof moverClarity>[0][number];
+    const previous = {
+      moverRanges: { a: { low: 3, high: 9 }, b: { low: 20, high: 30 } },
+    } as unknown as Parameters<typeof moverClarity>[1];
+    const c = moverClarity([item('a', 8, 15), item('b', 2, 12), item('c', 1, 2)], previous);
+    expect(c.get('a')).toBe('noise');
+    expect(c.get('b')).toBe('clear');
+    expect(c.has('c')).toBe(false);
   });
 });

@@ -136,6 +136,23 @@ describe('GET /api/categories/:slug/standings', () => {
     expect(second.page).toBe(2);
   });
 
+  it('gives every row its rank range around the point rank, and sorts by how wide it is', async () => {
+    const res = await analyst
+      .get(`/api/categories/${packs}/standings?sort=rankRange&pageSize=200`)
+      .expect(200);
+    const body = res.body as Standings;
+    expect(body.rankIntervals).toMatchObject({ level: 0.9, draws: 2000 });
+    const widths = body.rows.map((r) => r.rankHigh! - r.rankLow!);
+    expect(widths).toEqual([...widths].sort((a, b) => a - b));
+    for (const r of body.rows) {
+      expect(r.rankLow).toBeLessThanOrEqual(r.smoothedRank);
+      expect(r.rankHigh).toBeGreaterThanOrEqual(r.smoothedRank);
+      expect(r.topShare).toBeGreaterThanOrEqual(0);
+    }
+    // Most neighbouring ranks of a category are within the noise (Goldstein & Spiegelhalter 1996).
+    expect(widths.filter((w) => w > 0).length).toBeGreaterThan(body.rows.length / 2);
+  });
+
   it('filters by flag, by text and by drift range', async () => {
     const stale = (
       await analyst.get(`/api/categories/${lamps}/standings?flags=stale&pageSize=200`).expect(200)
@@ -268,7 +285,10 @@ describe('GET /api/categories/:slug/standings.csv', () => {
       .replace(/^\uFEFF/, '')
       .trim()
       .split('\r\n');
-    expect(csv[0]).toMatch(/,prior_weight_m,prior_weight_strategy_applied$/);
+    expect(csv[0]).toContain(',prior_weight_m,prior_weight_strategy_applied,');
+    expect(csv[0]).toMatch(
+      /,rank_range_90,rank_median,rank_range_from,rank_range_to,top10_chance,above_ahead_chance$/,
+    );
     expect(csv[1]).toContain(
       `${standings.m.toFixed(4)},"total review count, a fallback: credibility could not be estimated"`,
     );

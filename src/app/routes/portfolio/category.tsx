@@ -23,7 +23,7 @@ import { StandingsTable } from '../../../features/standings/components/standings
 import { viewFromParams } from '../../../features/standings/components/standings-view';
 import { WeekPicker } from '../../../features/standings/components/week-picker';
 import { countOf } from '../../../../shared/plural';
-import { priorWeightApplied, terms } from '../../../../shared/vocabulary';
+import { priorWeightApplied, rankWords, terms } from '../../../../shared/vocabulary';
 import { ApiError } from '../../../lib/api-client';
 import { fmt } from '../../../lib/format';
 import { queryClient } from '../../../lib/query-client';
@@ -220,11 +220,15 @@ export function Component() {
                         <span className="font-mono">{standings.data.thinThreshold.toFixed(1)}</span> reviews;
                         stale after {countOf(standings.data.staleAfterDays, 'day')}. {terms.drift}.{' '}
                         {terms.ties}
+                        {standings.data.rankIntervals ? (
+                          <> {rankWords.meaning(standings.data.rankIntervals.level)}</>
+                        ) : null}
                       </p>
                       <StandingsTable
                         slug={slug}
                         week={view.week}
                         rows={standings.data.rows}
+                        rankLevel={standings.data.rankIntervals?.level ?? null}
                         sort={view.sort}
                         dir={view.dir}
                         onSort={(sort: StandingsSort, dir) => update({ sort, dir })}

@@ -1,7 +1,7 @@
 import { Bar, Line } from 'react-chartjs-2';
 import { countOf } from '../../../../shared/plural';
 import type { ItemDetail } from '../../../../shared/schemas/standings.schema';
-import { standingsColumns } from '../../../../shared/vocabulary';
+import { rankWords, standingsColumns } from '../../../../shared/vocabulary';
 import { chartColours } from '../../../components/charts/chart-setup';
 
 type Timeline = ItemDetail['timeline'];
@@ -9,17 +9,48 @@ type Timeline = ItemDetail['timeline'];
 /** Naive and smoothed rank per snapshotted week; rank 1 at the top. Weeks without the item leave a gap. */
 export function RankTimeline({ timeline, sku }: { timeline: Timeline; sku: string }) {
   const present = timeline.filter((w) => w.smoothedRank !== null);
-  const maxRank = Math.max(1, ...timeline.map((w) => Math.max(w.naiveRank ?? 0, w.smoothedRank ?? 0)));
+  const maxRank = Math.max(
+    1,
+    ...timeline.map((w) => Math.max(w.naiveRank ?? 0, w.smoothedRank ?? 0, w.rankHigh ?? 0)),
+  );
+  const hasBand = timeline.some((w) => w.rankLow !== null && w.rankHigh !== null);
+  const level = timeline.find((w) => w.rankLevel !== null)?.rankLevel ?? 0.9;
+  const band = rankWords.chartBand(level);
   const summary =
     present.length === 0
       ? `${sku} has no rank in any snapshotted week.`
-      : `${sku} over ${timeline.length} weeks: smoothed rank from ${present[0]!.smoothedRank} in ${present[0]!.isoWeek} to ${present.at(-1)!.smoothedRank} in ${present.at(-1)!.isoWeek}; naive rank from ${present[0]!.naiveRank} to ${present.at(-1)!.naiveRank}.`;
+      : `${sku} over ${timeline.length} weeks: smoothed rank from ${present[0]!.smoothedRank} in ${present[0]!.isoWeek} to ${present.at(-1)!.smoothedRank} in ${present.at(-1)!.isoWeek}; naive rank from ${present[0]!.naiveRank} to ${present.at(-1)!.naiveRank}.${
+          present.at(-1)!.rankLow !== null && present.at(-1)!.rankHigh !== null
+            ? ` Latest ${rankWords.chartBand(present.at(-1)!.rankLevel ?? 0.9)}: ${rankWords.range(present.at(-1)!.rankLow!, present.at(-1)!.rankHigh!)}.`
+            : ''
+        }`;
   return (
     <div className="h-72" role="img" aria-label={summary}>
       <Line
         data={{
           labels: timeline.map((w) => w.isoWeek),
           datasets: [
+            // The band: the upper edge fills down to the lower edge (chart.js fill to the next dataset).
+            ...(hasBand
+              ? [
+                  {
+                    label: band,
+                    data: timeline.map((w) => w.rankLow),
+                    borderColor: 'transparent',
+                    backgroundColor: `${chartColours.ink300}55`,
+                    pointRadius: 0,
+                    fill: '+1' as const,
+                  },
+                  {
+                    label: `${band} (end)`,
+                    data: timeline.map((w) => w.rankHigh),
+                    borderColor: 'transparent',
+                    backgroundColor: 'transparent',
+                    pointRadius: 0,
+                    fill: false as const,
+                  },
+                ]
+              : []),
             {
               label: 'Smoothed rank',
               data: timeline.map((w) => w.smoothedRank),
@@ -45,12 +76,21 @@ export function RankTimeline({ timeline, sku }: { timeline: Timeline; sku: strin
           maintainAspectRatio: false,
           interaction: { mode: 'index', intersect: false },
           plugins: {
-            legend: { position: 'bottom', labels: { boxWidth: 14, boxHeight: 2 } },
+            legend: {
+              position: 'bottom',
+              labels: { boxWidth: 14, boxHeight: 2, filter: (item) => !item.text.endsWith('(end)') },
+            },
             tooltip: {
+              filter: (item) => !item.dataset.label?.startsWith(band),
               callbacks: {
                 afterBody: (items) => {
                   const w = timeline[items[0]?.dataIndex ?? 0];
-                  return w ? `of ${w.itemCount} items` : '';
+                  if (!w) return '';
+                  const range =
+                    w.rankLow !== null && w.rankHigh !== null
+                      ? `; ${band} ${rankWords.range(w.rankLow, w.rankHigh)}`
+                      : '';
+                  return `of ${w.itemCount} items${range}`;
                 },
               },
             },

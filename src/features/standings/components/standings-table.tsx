@@ -8,7 +8,7 @@ import {
 import { Link } from 'react-router-dom';
 import type { StandingsRow, StandingsSort } from '../../../../shared/schemas/standings.schema';
 import { countOf } from '../../../../shared/plural';
-import { standingsColumns as label } from '../../../../shared/vocabulary';
+import { standingsColumns as label, rankWords } from '../../../../shared/vocabulary';
 import { FlagBadge } from '../../../components/ui/flag-badge';
 import { fmt } from '../../../lib/format';
 
@@ -27,7 +27,7 @@ function Drift({ value }: { value: number }) {
   );
 }
 
-export function buildColumns(slug: string, week: string | undefined) {
+export function buildColumns(slug: string, week: string | undefined, rankLevel: number | null = null) {
   const num = 'text-right font-mono tabular-nums';
   return [
     col.accessor('smoothedRank', {
@@ -35,6 +35,25 @@ export function buildColumns(slug: string, week: string | undefined) {
       header: label.smoothedRank.label,
       meta: { className: num },
       cell: (c) => <span className="font-semibold text-ink-900">{c.getValue()}</span>,
+    }),
+    col.display({
+      id: 'rankRange',
+      header: label.rankRange.label,
+      meta: { className: 'text-right font-mono tabular-nums whitespace-nowrap' },
+      cell: ({ row: { original: r } }) =>
+        r.rankLow === null || r.rankHigh === null ? (
+          <span className="text-ink-300" title="Not computed for this week">
+            –
+          </span>
+        ) : (
+          <span
+            data-testid="rank-range"
+            className="text-ink-700"
+            title={`${rankWords.meaning(rankLevel ?? 0.9)}${r.topShare === null ? '' : ` ${label.topShare.label}: ${fmt.pct(r.topShare)}.`}${r.aboveAheadShare === null ? '' : ` ${label.aboveAheadShare.label}: ${fmt.pct(r.aboveAheadShare)}.`}`}
+          >
+            {rankWords.range(r.rankLow, r.rankHigh)}
+          </span>
+        ),
     }),
     col.accessor('naiveRank', { id: 'naiveRank', header: label.naiveRank.label, meta: { className: num } }),
     col.accessor('drift', {
@@ -104,6 +123,7 @@ export function buildColumns(slug: string, week: string | undefined) {
 
 const sortable = new Set<string>([
   'smoothedRank',
+  'rankRange',
   'naiveRank',
   'drift',
   'title',
@@ -119,6 +139,7 @@ export function StandingsTable({
   slug,
   week,
   rows,
+  rankLevel = null,
   sort,
   dir,
   onSort,
@@ -127,6 +148,7 @@ export function StandingsTable({
   slug: string;
   week: string | undefined;
   rows: StandingsRow[];
+  rankLevel?: number | null;
   sort: StandingsSort;
   dir: 'asc' | 'desc';
   onSort: (sort: StandingsSort, dir: 'asc' | 'desc') => void;
@@ -137,7 +159,7 @@ export function StandingsTable({
   // eslint-disable-next-line react-hooks/incompatible-library
   const table = useReactTable({
     data: rows,
-    columns: buildColumns(slug, week),
+    columns: buildColumns(slug, week, rankLevel),
     state: { sorting },
     manualSorting: true,
     manualPagination: true,
