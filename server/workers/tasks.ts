@@ -1,5 +1,6 @@
 import {
   calibrate,
+  scoreCategory,
   scoreRequest,
   ScoringInputError,
   type ItemInput,
@@ -41,7 +42,46 @@ export function scorePage(request: ScoreRequest, now: Date): ScorePage {
   };
 }
 
-export type WorkerTask = CalibrateTask | ScoreTask;
+/** The alert check's view of a category: the engine's standing of every item as of an instant. */
+export interface AlertStateTask {
+  kind: 'alert-state';
+  items: ItemInput[];
+  settings: Partial<ScoringSettings>;
+  asOf: string;
+}
+
+export type AlertItemState = {
+  sku: string;
+  title: string | null;
+  rank: number;
+  n: number;
+  smoothed: number;
+  cluster: boolean | null;
+  clusterReason: string | null;
+  phrases: { phrase: string; count: number }[];
+  stale: boolean | null;
+  staleReason: string | null;
+  thin: boolean;
+};
+
+export function alertState(task: AlertStateTask): AlertItemState[] {
+  const result = scoreCategory(task.items, task.settings, { asOf: task.asOf, previous: null });
+  return result.items.map((r) => ({
+    sku: r.sku,
+    title: r.title,
+    rank: r.smoothedRank,
+    n: r.n,
+    smoothed: r.smoothed,
+    cluster: r.negativeCluster,
+    clusterReason: r.clusterReason,
+    phrases: r.recurringPhrases,
+    stale: r.stale,
+    staleReason: r.staleReason,
+    thin: r.thin,
+  }));
+}
+
+export type WorkerTask = CalibrateTask | ScoreTask | AlertStateTask;
 
 /** An input error crosses the thread boundary as plain data; the service turns it back into a 400. */
 export type ScoreOutcome =
@@ -52,6 +92,8 @@ export default function runTask(task: WorkerTask) {
   switch (task.kind) {
     case 'calibrate':
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
+    case 'alert-state':
+      return alertState(task);
     case 'score':
       try {
         return { ok: true, result: scorePage(task.request, new Date(task.now)) } satisfies ScoreOutcome;

@@ -20,6 +20,7 @@ import { Category, Snapshot } from '../../db/models';
 import type { SnapshotRowDetails } from '../../db/models/snapshot-row.model';
 import { db } from '../../db/sequelize';
 import { AppError } from '../../lib/app-error';
+import { evidenceArrived } from '../alerts/alert-events';
 import { loadCategoryEvidence } from './snapshot-evidence';
 
 export type SnapshotOutcome = {
@@ -231,6 +232,7 @@ export async function takeSnapshot(options: TakeSnapshotOptions): Promise<Snapsh
       return snapshot.id;
     });
     if (existing) log(`${category.slug} ${isoWeek}: replaced the earlier snapshot`);
+    evidenceArrived({ source: 'snapshot', snapshotId, categoryId: category.id });
     return {
       snapshotId,
       categoryId: category.id,
