@@ -55,12 +55,17 @@ async function main(): Promise<void> {
   const mailWorker = startMailWorker({ transport: createMailTransport(config.mail, localSmtp?.port) });
   let landing: Landing | undefined;
   if (config.webhooks.landingPort > 0) {
-    landing = await startLanding({ port: config.webhooks.landingPort });
-    say(
-      `The Landing (local webhook receiver) on 127.0.0.1:${landing.port}; what it receives is in Admin › Landing.`,
-    );
-    if (config.demo && (await ensureDemoWebhook(landing.port)))
-      say('Registered the demo webhook to the Landing.');
+    try {
+      landing = await startLanding({ port: config.webhooks.landingPort });
+      say(
+        `The Landing (local webhook receiver) on 127.0.0.1:${landing.port}; it shows in Admin › The Landing.`,
+      );
+      if (config.demo && (await ensureDemoWebhook(landing.port)))
+        say('Registered the demo webhook to the Landing.');
+    } catch (err) {
+      const why = err instanceof Error ? err.message : String(err);
+      say(`The Landing could not listen (${why}); set BALLAST_LANDING_PORT to a free port, or 0 for none.`);
+    }
   }
   const webhookWorker = startWebhookWorker();
   const alertMailer = startAlertMailer();

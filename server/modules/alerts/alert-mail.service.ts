@@ -236,8 +236,8 @@ export async function composeAlertMail(
     held: held
       ? `${countOf(held, 'more alert')} of the same rules went over their daily limit and ${held === 1 ? 'is' : 'are'} only in your alert history.`
       : '',
-    historyUrl: `${base}/alerts/mine`,
-    settingsUrl: `${base}/my-digests`,
+    historyUrl: `${base}/alerts`,
+    settingsUrl: `${base}/alerts#choices`,
     caution: alertCaution,
   });
   return {
