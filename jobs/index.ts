@@ -1,4 +1,5 @@
 import cron from 'node-cron';
+import * as alertsJob from './alerts.job';
 import * as backfillJob from './backfill.job';
 import * as digestJob from './digest.job';
 import type { JobKinds } from './job-context';
@@ -10,6 +11,7 @@ export const jobKinds: JobKinds = {
   snapshot: snapshotJob.run,
   backfill: backfillJob.run,
   digest: digestJob.run,
+  alerts: alertsJob.run,
 };
 
 /** The one place Ballast calls cron.schedule: each schedule ticks in its own IANA time zone. */

@@ -5,9 +5,13 @@ import { createApp } from './app';
 import { loadConfig } from './config/env';
 import { closeDatabase } from './db/sequelize';
 import { logger, setLogLevel } from './lib/logger';
+import { checksIdle, listenForEvidence } from './modules/alerts/alert-check.service';
+import { startAlertMailer } from './modules/alerts/alert-mail.service';
 import { watchImports } from './modules/imports/imports.service';
 import { startLocalSmtpServer, type LocalSmtpServer } from './modules/mail/local-smtp';
 import { createMailTransport, startMailWorker } from './modules/mail/mail.service';
+import { startLanding, type Landing } from './modules/webhooks/landing';
+import { ensureDemoWebhook, startWebhookWorker } from './modules/webhooks/webhooks.service';
 import { ensureClientBuilt } from './runtime/client-build';
 import { prepareDatabase } from './runtime/database';
 import { limitHeapGrowth } from './runtime/heap';
@@ -21,6 +25,7 @@ async function main(): Promise<void> {
   limitHeapGrowth(config.heapGrowthPercent);
   const { sequelize, embedded } = await prepareDatabase(config, say);
   const demo = config.demo ? await seedDemo(say, { reviews: true }) : false;
+  const stopAlertChecks = listenForEvidence();
   const stopImportWatch = await watchImports(say);
   if (!process.argv.includes('--no-build')) ensureClientBuilt(config.rootDir, say);
 
@@ -48,6 +53,22 @@ async function main(): Promise<void> {
     say(`Local SMTP server on 127.0.0.1:${localSmtp.port}; mail it receives is in the Outbox screen.`);
   } else say(`Mail goes out through ${config.mail.smtp.host}:${config.mail.smtp.port}.`);
   const mailWorker = startMailWorker({ transport: createMailTransport(config.mail, localSmtp?.port) });
+  let landing: Landing | undefined;
+  if (config.webhooks.landingPort > 0) {
+    try {
+      landing = await startLanding({ port: config.webhooks.landingPort });
+      say(
+        `The Landing (local webhook receiver) on 127.0.0.1:${landing.port}; it shows in Admin › The Landing.`,
+      );
+      if (config.demo && (await ensureDemoWebhook(landing.port)))
+        say('Registered the demo webhook to the Landing.');
+    } catch (err) {
+      const why = err instanceof Error ? err.message : String(err);
+      say(`The Landing could not listen (${why}); set BALLAST_LANDING_PORT to a free port, or 0 for none.`);
+    }
+  }
+  const webhookWorker = startWebhookWorker();
+  const alertMailer = startAlertMailer();
   say('Press Ctrl-C to stop.');
 
   let stopping = false;
@@ -64,6 +85,11 @@ async function main(): Promise<void> {
       );
     }
     stopImportWatch();
+    stopAlertChecks();
+    await checksIdle();
+    alertMailer.stop();
+    await webhookWorker.stop();
+    await landing?.close();
     await mailWorker.stop();
     await localSmtp?.close();
     await new Promise<void>((resolve) => {

@@ -61,3 +61,26 @@ export function instantMs(value: string | Date): number {
   if (value instanceof Date) return value.getTime();
   return parseInstant(value)?.getTime() ?? Number.NaN;
 }
+
+/** Minutes after local midnight (0..1439) at an instant in an IANA time zone, daylight saving included. */
+export function localMinuteOfDay(instant: Date, timeZone: string): number {
+  const parts = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+  }).formatToParts(instant);
+  const hour = Number(parts.find((p) => p.type === 'hour')?.value ?? 0);
+  const minute = Number(parts.find((p) => p.type === 'minute')?.value ?? 0);
+  return hour * 60 + minute;
+}
+
+/** Whether an IANA time-zone name is one this runtime knows ('Europe/Berlin' yes, 'Mars/Olympus' no). */
+export function isTimeZone(name: string): boolean {
+  try {
+    new Intl.DateTimeFormat('en-GB', { timeZone: name });
+    return true;
+  } catch {
+    return false;
+  }
+}

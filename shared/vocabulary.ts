@@ -150,3 +150,21 @@ export function priorWeightApplied(p: {
   if (p.priorWeightApplied === p.priorWeightStrategy) return applied;
   return `${applied}, a fallback: ${priorWeightStrategyNames[p.priorWeightStrategy]} could not be estimated`;
 }
+
+/** What each alert rule is called on screen, in mail and in a webhook's text; `{n}` is the rule's threshold. */
+export const alertRuleNames = {
+  new_cluster: 'New negative cluster',
+  fell: 'Fell more than {n} places',
+  entered_top: 'Entered the top {n}',
+  left_top: 'Left the top {n}',
+  went_stale: 'Went stale',
+  thin_leader: 'In the top {n} on thin evidence',
+} as const;
+
+export function alertRuleName(rule: keyof typeof alertRuleNames, threshold: number | null): string {
+  return alertRuleNames[rule].replace('{n}', String(threshold ?? ''));
+}
+
+/** DESIGN §7 in the words of an alert mail and a webhook's text. */
+export const alertCaution =
+  'Scores are estimates from public ratings, not verdicts on a product or a reviewer. A negative cluster is a reason to read the reviews, not proof of a defect or of manipulation.';

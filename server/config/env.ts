@@ -36,6 +36,11 @@ const envSchema = z.object({
   BALLAST_WORKERS: z.coerce.number().int().min(1).max(64).optional(),
   BALLAST_WORKER_QUEUE: z.coerce.number().int().min(0).max(1000).default(8),
   BALLAST_HEAVY_PER_PRINCIPAL: z.coerce.number().int().min(1).max(100).default(2),
+  BALLAST_LANDING_PORT: z.coerce.number().int().min(0).max(65535).default(4602),
+  BALLAST_WEBHOOK_TIMEOUT_MS: z.coerce.number().int().min(100).max(60_000).default(5_000),
+  BALLAST_WEBHOOK_BACKOFF_MS: z.coerce.number().int().min(10).max(3_600_000).default(30_000),
+  BALLAST_WEBHOOK_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(50).default(10),
+  BALLAST_WEBHOOK_MAX_RESPONSE_KB: z.coerce.number().int().min(1).max(10_240).default(64),
 });
 
 export type Env = z.infer<typeof envSchema>;
@@ -75,6 +80,17 @@ export type Config = {
     unsubscribeSecret: string;
   };
   digestPaper: 'A4' | 'LETTER';
+  webhooks: {
+    /** Ballast's local webhook receiver (the Landing) on loopback; 0 switches it off. */
+    landingPort: number;
+    /** Each request ends after this long (connect, send, answer). */
+    timeoutMs: number;
+    /** First retry after this long, doubling per attempt (capped at an hour). */
+    backoffMs: number;
+    maxAttempts: number;
+    /** Ballast reads at most this much of a receiver's answer. */
+    maxResponseBytes: number;
+  };
   heavy: {
     /** Worker threads for CPU-heavy requests; one core stays with the event loop. */
     workers: number;
@@ -127,6 +143,13 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       unsubscribeSecret: e.UNSUBSCRIBE_SECRET ?? e.SESSION_SECRET ?? 'ballast-development-unsubscribe-secret',
     },
     digestPaper: e.DIGEST_PAPER.toUpperCase() as 'A4' | 'LETTER',
+    webhooks: {
+      landingPort: e.BALLAST_LANDING_PORT,
+      timeoutMs: e.BALLAST_WEBHOOK_TIMEOUT_MS,
+      backoffMs: e.BALLAST_WEBHOOK_BACKOFF_MS,
+      maxAttempts: e.BALLAST_WEBHOOK_MAX_ATTEMPTS,
+      maxResponseBytes: e.BALLAST_WEBHOOK_MAX_RESPONSE_KB * 1024,
+    },
     heavy: {
       workers: e.BALLAST_WORKERS ?? Math.max(1, os.availableParallelism() - 1),
       maxQueue: e.BALLAST_WORKER_QUEUE,

@@ -2,6 +2,7 @@ import { Router, type RequestHandler } from 'express';
 import { jsonBody } from '../lib/json-body';
 import type { RouteDef } from '../lib/route';
 import { guard } from '../middleware/guard';
+import { alertRoutes } from './alerts/alerts.routes';
 import { authRoutes } from './auth/auth.routes';
 import { calibrationRoutes } from './calibrations/calibrations.routes';
 import { categoryRoutes } from './categories/categories.routes';
@@ -17,6 +18,7 @@ import { tokenRoutes } from './tokens/tokens.routes';
 import { scheduleRoutes } from './schedules/schedules.routes';
 import { standingsRoutes } from './standings/standings.routes';
 import { userRoutes } from './users/users.routes';
+import { webhookRoutes } from './webhooks/webhooks.routes';
 
 /** Every API route of Ballast. The role-matrix test and the OpenAPI document both read this list. */
 export const apiRoutes: RouteDef[] = [
@@ -35,6 +37,8 @@ export const apiRoutes: RouteDef[] = [
   ...digestRoutes,
   ...mailRoutes,
   ...subscriptionRoutes,
+  ...alertRoutes,
+  ...webhookRoutes,
 ];
 
 const bodyLeftForTheHandler: RequestHandler = (_req, _res, next) => next();

@@ -2,6 +2,7 @@ import { createReadStream } from 'node:fs';
 import { Tinypool } from 'tinypool';
 import {
   calibrate,
+  scoreCategory,
   scoreRequest,
   scoreWithRankIntervals,
   ScoringInputError,
@@ -65,6 +66,45 @@ export type DigestTask =
   | { kind: 'digest'; digest: 'category'; data: CategoryDigestData; paper: PaperSize }
   | { kind: 'digest'; digest: 'portfolio'; data: PortfolioDigestData; paper: PaperSize };
 
+/** The alert check's view of a category: the engine's standing of every item as of an instant. */
+export interface AlertStateTask {
+  kind: 'alert-state';
+  items: ItemInput[];
+  settings: Partial<ScoringSettings>;
+  asOf: string;
+}
+
+export type AlertItemState = {
+  sku: string;
+  title: string | null;
+  rank: number;
+  n: number;
+  smoothed: number;
+  cluster: boolean | null;
+  clusterReason: string | null;
+  phrases: { phrase: string; count: number }[];
+  stale: boolean | null;
+  staleReason: string | null;
+  thin: boolean;
+};
+
+export function alertState(task: AlertStateTask): AlertItemState[] {
+  const result = scoreCategory(task.items, task.settings, { asOf: task.asOf, previous: null });
+  return result.items.map((r) => ({
+    sku: r.sku,
+    title: r.title,
+    rank: r.smoothedRank,
+    n: r.n,
+    smoothed: r.smoothed,
+    cluster: r.negativeCluster,
+    clusterReason: r.clusterReason,
+    phrases: r.recurringPhrases,
+    stale: r.stale,
+    staleReason: r.staleReason,
+    thin: r.thin,
+  }));
+}
+
 /** A snapshot's scoring and rank sampling, off the event loop that runs the scheduler and the API. */
 export interface SnapshotScoreTask {
   kind: 'snapshot-score';
@@ -124,7 +164,8 @@ async function readPreview(task: PreviewTask): Promise<PreviewRead> {
   return { records, progress: parse.progress, fileError };
 }
 
-export type WorkerTask = CalibrateTask | ScoreTask | DigestTask | PreviewTask | SnapshotScoreTask;
+export type WorkerTask =
+  CalibrateTask | ScoreTask | DigestTask | PreviewTask | SnapshotScoreTask | AlertStateTask;
 
 /**
  * The answer's JSON as bytes moved (not copied) to the event loop, which sends them as they are; an input
@@ -160,6 +201,8 @@ export default function runTask(task: WorkerTask) {
       ) satisfies SnapshotScore;
     case 'calibrate':
       return calibrate(task.items, task.observed, task.settings, { asOf: task.asOf, unexplainedCount: 50 });
+    case 'alert-state':
+      return alertState(task);
     case 'score':
       return scoreBody(task);
     case 'digest':

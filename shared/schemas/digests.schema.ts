@@ -162,7 +162,8 @@ export type DeliveryStatus = (typeof deliveryStatuses)[number];
 
 export const deliveryRecordSchema = z.object({
   id: z.number().int(),
-  digestId: z.number().int(),
+  /** Null for an alert mail. */
+  digestId: z.number().int().nullable(),
   digestLabel: z.string(),
   isoWeek: z.string(),
   recipient: z.string(),

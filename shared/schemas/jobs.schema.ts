@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { isIsoWeekLabel } from '../iso-week';
 import { isoWeekSchema } from './iso-week.schema';
 
-export const jobKinds = ['snapshot', 'backfill', 'digest'] as const;
+export const jobKinds = ['snapshot', 'backfill', 'digest', 'alerts'] as const;
 export type JobKind = (typeof jobKinds)[number];
 export const jobStatuses = ['queued', 'running', 'succeeded', 'failed'] as const;
 export type JobStatus = (typeof jobStatuses)[number];

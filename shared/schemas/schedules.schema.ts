@@ -3,11 +3,12 @@ import cronstrue from 'cronstrue';
 import { z } from 'zod';
 import { isoDateSchema } from './score.schema';
 
-export const produceKinds = ['snapshot', 'snapshot_digest'] as const;
+export const produceKinds = ['snapshot', 'snapshot_digest', 'alerts'] as const;
 export type ProduceKind = (typeof produceKinds)[number];
 export const produceLabels: Record<ProduceKind, string> = {
   snapshot: 'Snapshot only',
   snapshot_digest: 'Snapshot + digest',
+  alerts: 'Alert check',
 };
 
 const fieldNames = ['minute', 'hour', 'day of month', 'month', 'day of week'] as const;

@@ -13,11 +13,14 @@ export const navItems: NavItem[] = [
   { to: '/jobs', label: 'Job history', roles: ['ops', 'admin'] },
   { to: '/digests', label: 'Digests', roles: 'any' },
   { to: '/my-digests', label: 'My digests', roles: ['manager', 'exec'] },
+  { to: '/alerts', label: 'Alerts', roles: 'any' },
   { to: '/deliveries', label: 'Mail deliveries', roles: ['ops', 'admin'] },
   { to: '/outbox', label: 'Outbox', roles: ['ops', 'admin'] },
   { to: '/admin/people', label: 'People & ownership', roles: ['admin'] },
   { to: '/admin/audit', label: 'Audit log', roles: ['admin'] },
   { to: '/admin/tokens', label: 'API tokens', roles: ['admin'] },
+  { to: '/admin/webhooks', label: 'Webhooks', roles: ['admin'] },
+  { to: '/admin/landing', label: 'The Landing', roles: ['admin'] },
 ];
 
 export function navFor(role: RoleCode): NavItem[] {

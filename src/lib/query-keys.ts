@@ -81,4 +81,17 @@ export const queryKeys = {
     all: ['audit'] as const,
     list: (filter: { page: number; action?: string; actor?: string }) => ['audit', 'list', filter] as const,
   },
+  alerts: {
+    all: ['alerts'] as const,
+    mine: (page: number) => ['alerts', 'mine', { page }] as const,
+    settings: () => ['alerts', 'settings'] as const,
+    rules: (slug: string) => ['alerts', 'rules', { slug }] as const,
+    category: (slug: string, page: number) => ['alerts', 'category', { slug, page }] as const,
+  },
+  webhooks: {
+    all: ['webhooks'] as const,
+    list: () => ['webhooks', 'list'] as const,
+    deliveries: (id: number) => ['webhooks', 'deliveries', { id }] as const,
+    landing: () => ['webhooks', 'landing'] as const,
+  },
 };

@@ -37,3 +37,27 @@ export function renderDigestMail(view: DigestMailView): { html: string; text: st
     text: text(view).replace(/\n{3,}/g, '\n\n'),
   };
 }
+
+export type AlertMailView = {
+  subject: string;
+  heading: string;
+  groups: {
+    category: string;
+    alerts: { ruleName: string; headline: string; reason: string; phrases: string; itemUrl: string }[];
+  }[];
+  held: string;
+  historyUrl: string;
+  settingsUrl: string;
+  caution: string;
+};
+
+const alertHtml = htmlEngine.compile(readFileSync(path.join(dir, 'alerts.html.hbs'), 'utf8'), {
+  strict: false,
+});
+const alertText = textEngine.compile(readFileSync(path.join(dir, 'alerts.text.hbs'), 'utf8'), {
+  noEscape: true,
+});
+
+export function renderAlertMail(view: AlertMailView): { html: string; text: string } {
+  return { html: alertHtml(view), text: alertText(view).replace(/\n{3,}/g, '\n\n') };
+}

@@ -18,6 +18,7 @@ export async function startServerProcess(
 ): Promise<ServerProcess> {
   const port = await freePort();
   const smtpPort = await freePort();
+  const landingPort = await freePort();
   let log = '';
   const child = spawn(
     process.execPath,
@@ -34,6 +35,7 @@ export async function startServerProcess(
         BALLAST_DEMO: 'true',
         LOG_LEVEL: 'warn',
         BALLAST_SMTP_PORT: String(smtpPort),
+        BALLAST_LANDING_PORT: String(landingPort),
         ...env,
       },
       stdio: ['ignore', 'pipe', 'pipe'],

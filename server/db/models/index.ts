@@ -20,6 +20,8 @@ import { Session } from './session.model';
 import { SnapshotRow } from './snapshot-row.model';
 import { Snapshot } from './snapshot.model';
 import { User } from './user.model';
+import { WebhookDelivery } from './webhook-delivery.model';
+import { Webhook } from './webhook.model';
 
 /** Initialises every model on one connection and declares the associations in one place. */
 export function initModels(sequelize: Sequelize): void {
@@ -45,6 +47,8 @@ export function initModels(sequelize: Sequelize): void {
     DigestSubscription,
     MailDelivery,
     OutboxMessage,
+    Webhook,
+    WebhookDelivery,
   ];
   for (const model of models) model.initModel(sequelize);
 
@@ -102,4 +106,6 @@ export {
   Snapshot,
   SnapshotRow,
   User,
+  Webhook,
+  WebhookDelivery,
 };

@@ -37,7 +37,7 @@ export class JobRun extends Model<InferAttributes<JobRun>, InferCreationAttribut
       {
         id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
         scheduleId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
-        kind: { type: DataTypes.ENUM('snapshot', 'backfill', 'digest'), allowNull: false },
+        kind: { type: DataTypes.ENUM('snapshot', 'backfill', 'digest', 'alerts'), allowNull: false },
         categoryId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         isoWeek: { type: DataTypes.STRING(8), allowNull: true },
         dueAt: { type: DataTypes.DATE, allowNull: true },

@@ -13,7 +13,9 @@ export class MailDelivery extends Model<
   InferCreationAttributes<MailDelivery>
 > {
   declare id: CreationOptional<number>;
-  declare digestId: number;
+  /** The digest this mail carries, or null for an alert mail. */
+  declare digestId: number | null;
+  declare alertMailId: CreationOptional<number | null>;
   declare recipient: string;
   declare target: string;
   declare status: DeliveryStatus;
@@ -31,7 +33,8 @@ export class MailDelivery extends Model<
     MailDelivery.init(
       {
         id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
-        digestId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+        digestId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        alertMailId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         recipient: { type: DataTypes.STRING(254), allowNull: false },
         target: { type: DataTypes.STRING(40), allowNull: false },
         status: { type: DataTypes.ENUM('queued', 'sending', 'sent', 'failed'), allowNull: false },

@@ -34,7 +34,7 @@ export class ReportSchedule extends Model<
         timeZone: { type: DataTypes.STRING(64), allowNull: false },
         categoryIds: { type: DataTypes.JSON, allowNull: true },
         recipients: { type: DataTypes.JSON, allowNull: false },
-        produce: { type: DataTypes.ENUM('snapshot', 'snapshot_digest'), allowNull: false },
+        produce: { type: DataTypes.ENUM('snapshot', 'snapshot_digest', 'alerts'), allowNull: false },
         enabled: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
         lastDueAt: { type: DataTypes.DATE, allowNull: true },
         createdBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },

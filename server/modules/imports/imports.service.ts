@@ -29,6 +29,7 @@ import { AppError } from '../../lib/app-error';
 import { logger } from '../../lib/logger';
 import { runInWorker } from '../../workers/pool';
 import type { PreviewRead } from '../../workers/tasks';
+import { evidenceArrived } from '../alerts/alert-events';
 import { rejectedRowsCsv } from './csv-safe';
 import { claimImport, importWorkerId, keepLeases, newLease, releaseImport } from './import-leases';
 import { parseImport, type Delimiter, type ParsedRecord } from './import-parser';
@@ -57,7 +58,10 @@ async function writeWithRetries(
 ): Promise<WriteOutcome> {
   for (let attempt = 1; ; attempt++) {
     try {
-      return await writeRecords(records(), options);
+      const outcome = await writeRecords(records(), options);
+      if (outcome.counters.rowsInserted + outcome.counters.rowsUpdated > 0)
+        evidenceArrived({ source: 'import', importBatchId: options.batchId });
+      return outcome;
     } catch (error) {
       if (!(error instanceof ImportConflictError) || options.mode !== 'all_or_nothing') throw error;
       if (attempt >= writeAttempts) throw error;

@@ -220,7 +220,7 @@ export async function claimDueRuns(claim: DueClaim): Promise<number[]> {
       try {
         const run = await JobRun.create({
           scheduleId: schedule.id,
-          kind: 'snapshot',
+          kind: schedule.produce === 'alerts' ? 'alerts' : 'snapshot',
           categoryId,
           isoWeek,
           dueAt: claim.dueAt,

@@ -16,8 +16,8 @@ export function mailDomain(from = loadConfig().mail.from): string {
 }
 
 /** A Message-ID chosen once per delivery, before any attempt, and reused by every retry. */
-export function newMessageId(digestId: number): string {
-  return `<digest-${digestId}.${randomBytes(9).toString('base64url')}@${mailDomain()}>`;
+export function newMessageId(digestId: number | null): string {
+  return `<${digestId === null ? 'alerts' : `digest-${digestId}`}.${randomBytes(9).toString('base64url')}@${mailDomain()}>`;
 }
 
 /** Queues one mail per recipient; a recipient already queued for the digest is left alone. */
@@ -65,7 +65,9 @@ async function labels(rows: Joined[]): Promise<Map<number, string>> {
 function toRecord(row: Joined, names: Map<number, string>): DeliveryRecord {
   const d = row.digest;
   const label = !d
-    ? 'digest'
+    ? row.alertMailId
+      ? 'Alerts'
+      : 'digest'
     : d.kind === 'portfolio'
       ? 'Portfolio'
       : (names.get(d.categoryId) ?? `Category ${d.categoryId}`);

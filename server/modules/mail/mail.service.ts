@@ -1,12 +1,13 @@
 import nodemailer, { type SendMailOptions, type Transporter } from 'nodemailer';
-import { Op } from 'sequelize';
 import { countOf } from '../../../shared/plural';
 import type { DigestKind, DigestSummary } from '../../../shared/schemas/digests.schema';
 import { renderDigestMail } from '../../../templates/mail/render';
 import { loadConfig, type Config } from '../../config/env';
 import { Category, Digest, MailDelivery } from '../../db/models';
+import { claimDue } from '../../lib/leased-queue';
 import { logger } from '../../lib/logger';
 import { digestFileName } from '../digests/digests.service';
+import { composeAlertMail } from '../alerts/alert-mail.service';
 import { unsubscribeToken } from '../subscriptions/subscriptions.service';
 import { mailEvents } from './mail-events';
 
@@ -134,39 +135,12 @@ export async function processDueDeliveries(options: {
   const now = options.now ?? new Date();
   const config = options.config ?? loadConfig();
   const pass: WorkerPass = { claimed: 0, sent: 0, retrying: 0, failed: 0 };
-  const due = await MailDelivery.findAll({
-    where: {
-      [Op.or]: [
-        { status: 'queued', nextAttemptAt: { [Op.lte]: now } },
-        { status: 'sending', leaseUntil: { [Op.lt]: now } },
-      ],
-    },
-    attributes: ['id', 'status'],
-    order: [['id', 'ASC']],
-    limit: options.limit ?? 50,
-  });
-  for (const candidate of due) {
-    const [claimed] = await MailDelivery.update(
-      {
-        status: 'sending',
-        leaseUntil: new Date(now.getTime() + LEASE_MS),
-        attempts: MailDelivery.sequelize!.literal('attempts + 1') as unknown as number,
-      },
-      {
-        where: {
-          id: candidate.id,
-          [Op.or]: [
-            { status: 'queued', nextAttemptAt: { [Op.lte]: now } },
-            { status: 'sending', leaseUntil: { [Op.lt]: now } },
-          ],
-        },
-      },
-    );
-    if (claimed !== 1) continue;
+  const claimed = await claimDue(MailDelivery, { now, leaseMs: LEASE_MS, limit: options.limit ?? 50 });
+  for (const id of claimed) {
     pass.claimed += 1;
-    const delivery = (await MailDelivery.findByPk(candidate.id))!;
-    const digest = await Digest.findByPk(delivery.digestId);
-    if (!digest) {
+    const delivery = (await MailDelivery.findByPk(id))!;
+    const digest = delivery.digestId ? await Digest.findByPk(delivery.digestId) : null;
+    if (!digest && !delivery.alertMailId) {
       await MailDelivery.update(
         { status: 'failed', lastError: 'The digest of this mail no longer exists.', leaseUntil: null },
         { where: { id: delivery.id } },
@@ -175,7 +149,9 @@ export async function processDueDeliveries(options: {
       continue;
     }
     try {
-      const mail = await composeDeliveryMail(delivery, digest, config);
+      const mail = digest
+        ? await composeDeliveryMail(delivery, digest, config)
+        : await composeAlertMail({ ...delivery.get(), alertMailId: delivery.alertMailId! }, config);
       await options.transport.sendMail(mail);
       await MailDelivery.update(
         { status: 'sent', sentAt: new Date(), leaseUntil: null, lastError: null, nextAttemptAt: null },

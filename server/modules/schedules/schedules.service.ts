@@ -228,7 +228,7 @@ export async function runScheduleNow(
   }
   const runs = await queueRuns(
     categoryIds.map((categoryId) => ({
-      kind: 'snapshot' as const,
+      kind: row.produce === 'alerts' ? ('alerts' as const) : ('snapshot' as const),
       categoryId,
       scheduleId: row.id,
       isoWeek: lastCompletedIsoWeek(now),

@@ -23,6 +23,7 @@ import { db } from '../../db/sequelize';
 import { AppError } from '../../lib/app-error';
 import { runInWorker } from '../../workers/pool';
 import type { SnapshotScore } from '../../workers/tasks';
+import { evidenceArrived } from '../alerts/alert-events';
 import { loadCategoryEvidence } from './snapshot-evidence';
 
 export type SnapshotOutcome = {
@@ -267,6 +268,7 @@ export async function takeSnapshot(options: TakeSnapshotOptions): Promise<Snapsh
       return snapshot.id;
     });
     if (existing) log(`${category.slug} ${isoWeek}: replaced the earlier snapshot`);
+    evidenceArrived({ source: 'snapshot', snapshotId, categoryId: category.id });
     return {
       snapshotId,
       categoryId: category.id,

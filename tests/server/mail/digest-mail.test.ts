@@ -283,7 +283,7 @@ describe('delivery while the SMTP server is down', () => {
     expect(fresh.messageId).not.toBe(delivery.messageId);
     // a worker claims it and the SMTP server accepts it, then the process dies before recording 'sent'
     const { Digest } = await import('../../../server/db/models');
-    const digest = (await Digest.findByPk(fresh.digestId))!;
+    const digest = (await Digest.findByPk(fresh.digestId!))!;
     await transport().sendMail(await composeDeliveryMail(fresh, digest, config));
     await MailDelivery.update(
       { status: 'sending', attempts: 1, leaseUntil: new Date(Date.now() - 1000) },

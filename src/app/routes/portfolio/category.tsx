@@ -121,6 +121,12 @@ export function Component() {
                   Calibrate
                 </Link>
               ) : null}
+              <Link
+                to={`/categories/${slug}/alerts`}
+                className="inline-flex items-center rounded-md bg-white px-3.5 py-2 text-sm font-semibold text-ink-900 ring-1 ring-ink-200 hover:bg-ink-50"
+              >
+                Alerts
+              </Link>
             </>
           ) : null
         }
