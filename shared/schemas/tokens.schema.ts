@@ -26,6 +26,8 @@ export const apiTokenSchema = z.object({
   /** null: every category the role may reach. */
   categories: z.array(z.object({ id: z.number().int(), slug: z.string(), name: z.string() })).nullable(),
   createdBy: z.string().nullable(),
+  /** The administrator who answers for the token (it stops while they are disabled); null: made by command. */
+  createdById: z.number().int().nullable(),
   createdAt: z.string(),
   lastUsedAt: z.string().nullable(),
   revokedAt: z.string().nullable(),

@@ -42,6 +42,7 @@ async function toRecords(tokens: ApiToken[]): Promise<ApiTokenRecord[]> {
         })
       : null,
     createdBy: t.createdBy ? (names.get(t.createdBy) ?? null) : null,
+    createdById: t.createdBy ?? null,
     createdAt: t.createdAt.toISOString(),
     lastUsedAt: t.lastUsedAt?.toISOString() ?? null,
     revokedAt: t.revokedAt?.toISOString() ?? null,

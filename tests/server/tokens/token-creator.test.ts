@@ -81,6 +81,7 @@ describe('tokens of a disabled administrator', () => {
 
     const moved = (await reassign(me.id).expect(200)).body as ApiTokenRecord;
     expect(moved.createdBy).not.toBe('Ada Second');
+    expect(moved.createdById).toBe(me.id);
     await callWithToken().expect(200);
   });
 });

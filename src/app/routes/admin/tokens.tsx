@@ -2,6 +2,7 @@ import { RouteError } from '../../../components/errors/route-error';
 import { WidgetBoundary } from '../../../components/errors/widget-boundary';
 import { PageHeader } from '../../../components/ui/page-header';
 import { ErrorPanel, Loading } from '../../../components/ui/status';
+import { usersQueryOptions, useUsers } from '../../../features/admin/api/get-users';
 import { categoriesQueryOptions, useCategories } from '../../../features/categories/api/get-categories';
 import { tokensQueryOptions, useTokens } from '../../../features/tokens/api/get-tokens';
 import { CreateTokenForm } from '../../../features/tokens/components/create-token-form';
@@ -12,6 +13,7 @@ export async function loader() {
   await Promise.all([
     queryClient.ensureQueryData(tokensQueryOptions()),
     queryClient.ensureQueryData(categoriesQueryOptions()),
+    queryClient.ensureQueryData(usersQueryOptions()),
   ]);
   return null;
 }
@@ -19,6 +21,12 @@ export async function loader() {
 export function Component() {
   const tokens = useTokens();
   const categories = useCategories();
+  const users = useUsers();
+  // A token answers to one administrator; it can be handed only to an active one.
+  const keepers = users.data
+    ?.filter((u) => u.active && u.role === 'admin')
+    .map((u) => ({ id: u.id, name: u.name }));
+  const disabledCreators = new Set((users.data ?? []).filter((u) => !u.active).map((u) => u.id));
   return (
     <>
       <PageHeader
@@ -39,7 +47,9 @@ export function Component() {
         <WidgetBoundary label="tokens">
           {tokens.isPending ? <Loading /> : null}
           {tokens.isError ? <ErrorPanel error={tokens.error} /> : null}
-          {tokens.data ? <TokensTable tokens={tokens.data} /> : null}
+          {tokens.data ? (
+            <TokensTable tokens={tokens.data} keepers={keepers} disabledCreators={disabledCreators} />
+          ) : null}
         </WidgetBoundary>
       </section>
     </>

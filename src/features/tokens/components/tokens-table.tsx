@@ -4,10 +4,21 @@ import type { ApiTokenRecord } from '../../../../shared/schemas/tokens.schema';
 import { Button } from '../../../components/ui/button';
 import { EmptyState, errorMessage } from '../../../components/ui/status';
 import { useRevokeToken } from '../api/revoke-token';
+import { HandOverToken, type TokenKeeper } from './hand-over-token';
 
 const when = (iso: string | null) => (iso ? format(new Date(iso), 'd MMM yyyy HH:mm') : 'never');
 
-export function TokensTable({ tokens }: { tokens: ApiTokenRecord[] }) {
+export function TokensTable({
+  tokens,
+  keepers,
+  disabledCreators,
+}: {
+  tokens: ApiTokenRecord[];
+  /** Active administrators a token may be handed to; without them the table offers no hand-over. */
+  keepers?: TokenKeeper[];
+  /** Ids of disabled people: their tokens are stopped until handed over or until they are enabled. */
+  disabledCreators?: ReadonlySet<number>;
+}) {
   const revoke = useRevokeToken();
   if (tokens.length === 0)
     return (
@@ -24,11 +35,13 @@ export function TokensTable({ tokens }: { tokens: ApiTokenRecord[] }) {
         <caption className="sr-only">API tokens</caption>
         <thead className="bg-ink-50 text-left text-ink-700">
           <tr>
-            {['Name', 'Starts with', 'Acts as', 'Categories', 'Created', 'Last used', ''].map((h, i) => (
-              <th key={i} scope="col" className="px-4 py-2 whitespace-nowrap">
-                {h || <span className="sr-only">Actions</span>}
-              </th>
-            ))}
+            {['Name', 'Starts with', 'Acts as', 'Categories', 'Created', 'Answers to', 'Last used', ''].map(
+              (h, i) => (
+                <th key={i} scope="col" className="px-4 py-2 whitespace-nowrap">
+                  {h || <span className="sr-only">Actions</span>}
+                </th>
+              ),
+            )}
           </tr>
         </thead>
         <tbody>
@@ -40,9 +53,19 @@ export function TokensTable({ tokens }: { tokens: ApiTokenRecord[] }) {
               <td className="px-4 py-2">
                 {t.categories ? t.categories.map((c) => c.name).join(', ') : 'All'}
               </td>
-              <td className="px-4 py-2 whitespace-nowrap">
-                {when(t.createdAt)}
-                {t.createdBy ? <div className="text-xs text-ink-500">by {t.createdBy}</div> : null}
+              <td className="px-4 py-2 whitespace-nowrap">{when(t.createdAt)}</td>
+              <td className="px-4 py-2">
+                <div className="whitespace-nowrap">{t.createdBy ?? 'Made from the command line'}</div>
+                {!t.revokedAt && t.createdById !== null && disabledCreators?.has(t.createdById) ? (
+                  <div className="mt-1 inline-block rounded bg-brass-100 px-2 py-0.5 text-xs font-semibold text-brass-700">
+                    Stopped: {t.createdBy ?? 'its creator'} is disabled
+                  </div>
+                ) : null}
+                {!t.revokedAt && keepers ? (
+                  <div className="mt-1">
+                    <HandOverToken token={t} keepers={keepers} />
+                  </div>
+                ) : null}
               </td>
               <td className="px-4 py-2 whitespace-nowrap">{when(t.lastUsedAt)}</td>
               <td className="px-4 py-2 text-right">
