@@ -36,12 +36,6 @@ async function main(): Promise<void> {
     server.once('error', reject);
   });
 
-  say(`Ballast is running at ${config.publicUrl}`);
-  if (demo) {
-    say('Demo sign-ins (password for each):');
-    for (const account of demoAccounts)
-      say(`  ${account.role.padEnd(8)} ${account.email.padEnd(34)} ${account.password}`);
-  }
   let scheduler: Scheduler | undefined;
   if (config.scheduler) {
     scheduler = await startScheduler({ log: (line) => say(line) });
@@ -69,7 +63,6 @@ async function main(): Promise<void> {
   }
   const webhookWorker = startWebhookWorker();
   const alertMailer = startAlertMailer();
-  say('Press Ctrl-C to stop.');
 
   let stopping = false;
   const stop = async (signal: string): Promise<void> => {
@@ -107,6 +100,15 @@ async function main(): Promise<void> {
   };
   process.on('SIGINT', () => void stop('SIGINT'));
   process.on('SIGTERM', () => void stop('SIGTERM'));
+  // Said only once every part has started and a signal stops them all: a service manager (and the stop
+  // test) may send SIGINT the moment it reads this line.
+  say(`Ballast is running at ${config.publicUrl}`);
+  if (demo) {
+    say('Demo sign-ins (password for each):');
+    for (const account of demoAccounts)
+      say(`  ${account.role.padEnd(8)} ${account.email.padEnd(34)} ${account.password}`);
+  }
+  say('Press Ctrl-C to stop.');
 }
 
 main().catch((err: unknown) => {

@@ -37,7 +37,12 @@ async function until(what: string, check: () => boolean | Promise<boolean>, ms: 
 // process alone, as a service manager sends it.
 async function startAndSignal(signal: 'SIGINT' | 'SIGTERM', target: 'npm' | 'group' = 'npm'): Promise<void> {
   const dataDir = mkdtempSync(path.join(os.tmpdir(), 'ballast-stop-'));
-  const [port, dbPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
+  const [port, dbPort, smtpPort, landingPort] = [
+    await freePort(),
+    await freePort(),
+    await freePort(),
+    await freePort(),
+  ];
   let log = '';
   const env: NodeJS.ProcessEnv = { ...process.env };
   delete env.DATABASE_URL;
@@ -53,6 +58,7 @@ async function startAndSignal(signal: 'SIGINT' | 'SIGTERM', target: 'npm' | 'gro
       BALLAST_DATA_DIR: dataDir,
       BALLAST_DB_PORT: String(dbPort),
       BALLAST_SMTP_PORT: String(smtpPort),
+      BALLAST_LANDING_PORT: String(landingPort),
       BALLAST_DEMO: 'false',
       BALLAST_SCHEDULER: 'false',
       SESSION_SECRET: 'stop-test-secret-of-ballast',
