@@ -28,6 +28,10 @@ export const standingsColumns = {
   rankHigh: { label: 'Rank range to', csv: 'rank_range_to' },
   topShare: { label: 'Chance of top 10', csv: 'top10_chance' },
   aboveAheadShare: { label: 'Chance the item above is ahead', csv: 'above_ahead_chance' },
+  isoWeek: { label: 'Week', csv: 'iso_week' },
+  category: { label: 'Category', csv: 'category' },
+  priorMean: { label: 'C', csv: 'prior_mean_c' },
+  priorWeightStrategy: { label: 'Strategy asked for', csv: 'prior_weight_strategy' },
 } as const;
 export type StandingsColumn = keyof typeof standingsColumns;
 
@@ -35,6 +39,13 @@ export type StandingsColumn = keyof typeof standingsColumns;
 export const standingsLabels: ReadonlySet<string> = new Set(
   Object.values(standingsColumns).map((c) => c.label),
 );
+
+/** DESIGN §7, word for word wherever a file or screen carries scores without a person beside it. */
+export const cautionText = [
+  'Scores are estimates from public ratings, not verdicts on a product or a reviewer.',
+  'A negative cluster is a reason to read the reviews, not proof of a defect or of manipulation.',
+  "Reviewer identifiers are personal data: Ballast stores only what the job needs and never shows them in digests; follow the retailer's policy and local law.",
+] as const;
 
 export const terms = {
   spearman: "Spearman's rho",

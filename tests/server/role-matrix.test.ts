@@ -66,6 +66,7 @@ const expected: Record<string, Allowed> = {
   'GET /api/categories/:slug/weeks': 'signed-in',
   'GET /api/categories/:slug/standings': 'signed-in',
   'GET /api/categories/:slug/standings.csv': 'signed-in',
+  'GET /api/categories/:slug/standings.xlsx': 'signed-in',
   'GET /api/categories/:slug/drift': 'signed-in',
   'GET /api/categories/:slug/freshness': 'signed-in',
   'GET /api/categories/:slug/items/:sku': 'signed-in',

@@ -25,6 +25,7 @@ import {
   getStandings,
   listWeeks,
 } from './standings.service';
+import { exportStandingsXlsx } from './standings-workbook';
 import {
   getCategorySettings,
   getWhatIfEvidence,
@@ -79,6 +80,22 @@ export const standingsRoutes = [
       res.setHeader('Content-Type', 'text/csv; charset=utf-8');
       res.setHeader('Content-Disposition', `attachment; filename="${fileName}"`);
       res.send(csv);
+      return undefined;
+    },
+  }),
+  route({
+    method: 'get',
+    path: '/api/categories/:slug/standings.xlsx',
+    tag,
+    summary:
+      'The same view as the CSV export as an .xlsx workbook, with a second sheet of parameters and cautions',
+    access: read,
+    query: standingsQuerySchema,
+    handler: async (req, res, { query }) => {
+      const { fileName, body } = await exportStandingsXlsx(req.category!, query);
+      res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
+      res.setHeader('Content-Disposition', `attachment; filename="${fileName}"`);
+      res.send(body);
       return undefined;
     },
   }),

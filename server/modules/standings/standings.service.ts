@@ -15,7 +15,12 @@ import type {
   StandingsSort,
   WeekSummary,
 } from '../../../shared/schemas/standings.schema';
-import { priorWeightApplied, rankWords, standingsColumns } from '../../../shared/vocabulary';
+import {
+  priorWeightApplied,
+  priorWeightStrategyNames,
+  rankWords,
+  standingsColumns,
+} from '../../../shared/vocabulary';
 import { Category } from '../../db/models';
 import type { SnapshotRowDetails } from '../../db/models/snapshot-row.model';
 import { db } from '../../db/sequelize';
@@ -339,26 +344,45 @@ const flagList = (r: StandingsRow) =>
     .join(' ');
 
 const w = standingsColumns;
-const csvColumns = (params: ResolvedParameters): CsvColumn<StandingsRow>[] => [
-  { header: w.smoothedRank.csv, value: 'smoothedRank' },
-  { header: w.naiveRank.csv, value: 'naiveRank' },
-  { header: w.drift.csv, value: 'drift' },
+
+/** A column of the standings export; `numeric` ones are numbers in the workbook (text in any CSV). */
+export type ExportColumn<T> = CsvColumn<T> & { numeric?: boolean };
+
+/** What an exported row is read against: the week, the category and the parameters of that week. */
+export type ExportContext = { isoWeek: string; category: string; params: ResolvedParameters };
+
+/**
+ * The columns of every standings export (CSV and workbook), in order. The week, the category, C, m and the
+ * strategy sit on every row so that a saved, filtered or pasted extract still says what it was.
+ */
+export const csvColumns = ({ isoWeek, category, params }: ExportContext): ExportColumn<StandingsRow>[] => [
+  { header: w.isoWeek.csv, value: () => isoWeek },
+  { header: w.category.csv, value: () => category },
+  { header: w.smoothedRank.csv, value: 'smoothedRank', numeric: true },
+  { header: w.naiveRank.csv, value: 'naiveRank', numeric: true },
+  { header: w.drift.csv, value: 'drift', numeric: true },
   { header: w.sku.csv, value: 'sku' },
   { header: w.title.csv, value: 'title' },
-  { header: w.n.csv, value: 'n' },
-  { header: w.rawMean.csv, value: (r) => (r.rawMean === null ? '' : r.rawMean.toFixed(4)) },
-  { header: w.smoothed.csv, value: (r) => r.smoothed.toFixed(4) },
-  { header: w.lowerBound.csv, value: (r) => r.lowerBound.toFixed(4) },
+  { header: w.n.csv, value: 'n', numeric: true },
+  {
+    header: w.rawMean.csv,
+    value: (r) => (r.rawMean === null ? '' : r.rawMean.toFixed(4)),
+    numeric: true,
+  },
+  { header: w.smoothed.csv, value: (r) => r.smoothed.toFixed(4), numeric: true },
+  { header: w.lowerBound.csv, value: (r) => r.lowerBound.toFixed(4), numeric: true },
   {
     header: w.newestAgeDays.csv,
     value: (r) => (r.newestAgeDays === null ? '' : Math.floor(r.newestAgeDays)),
+    numeric: true,
   },
-  { header: w.smoothedMovement.csv, value: 'smoothedMovement' },
+  { header: w.smoothedMovement.csv, value: 'smoothedMovement', numeric: true },
   { header: w.flags.csv, value: flagList },
   { header: w.staleReason.csv, value: 'staleReason' },
   { header: w.clusterReason.csv, value: 'clusterReason' },
-  // The week's m and the strategy that set it, on every row so a filtered or pasted extract keeps them.
-  { header: w.priorWeight.csv, value: () => params.m.toFixed(4) },
+  { header: w.priorMean.csv, value: () => params.C.toFixed(4), numeric: true },
+  { header: w.priorWeightStrategy.csv, value: () => priorWeightStrategyNames[params.priorWeightStrategy] },
+  { header: w.priorWeight.csv, value: () => params.m.toFixed(4), numeric: true },
   { header: w.priorWeightApplied.csv, value: () => priorWeightApplied(params) },
   // Rank intervals: empty on weeks snapshotted before they existed.
   {
@@ -375,16 +399,27 @@ const csvColumns = (params: ResolvedParameters): CsvColumn<StandingsRow>[] => [
   },
 ];
 
+/** Every row of the filtered and sorted view with what the export columns need, and its file name. */
+export async function standingsExport(
+  category: CategoryRef,
+  query: StandingsQuery,
+  extension: 'csv' | 'xlsx',
+): Promise<{ fileName: string; rows: StandingsRow[]; context: ExportContext; snapshot: WeekSnapshot }> {
+  const snapshot = await findWeek(category, query.week);
+  const { rows } = await selectStandings(snapshot, query, null);
+  const filtered = query.flags || query.q || query.driftMin !== undefined || query.driftMax !== undefined;
+  const fileName = `ballast-${category.slug}-${snapshot.summary.isoWeek}-standings${filtered ? '-filtered' : ''}.${extension}`;
+  const context = { isoWeek: snapshot.summary.isoWeek, category: category.name, params: snapshot.params };
+  return { fileName, rows, context, snapshot };
+}
+
 /** The whole filtered and sorted view (every page) as CSV, safe to open in a spreadsheet. */
 export async function exportStandingsCsv(
   category: CategoryRef,
   query: StandingsQuery,
 ): Promise<{ fileName: string; csv: string }> {
-  const snapshot = await findWeek(category, query.week);
-  const { rows } = await selectStandings(snapshot, query, null);
-  const filtered = query.flags || query.q || query.driftMin !== undefined || query.driftMax !== undefined;
-  const fileName = `ballast-${category.slug}-${snapshot.summary.isoWeek}-standings${filtered ? '-filtered' : ''}.csv`;
-  return { fileName, csv: await toCsvInSlices(rows, csvColumns(snapshot.params), { bom: true }) };
+  const { fileName, rows, context } = await standingsExport(category, query, 'csv');
+  return { fileName, csv: await toCsvInSlices(rows, csvColumns(context), { bom: true }) };
 }
 
 /** Naive against smoothed rank for every item of the week, as parallel arrays. */

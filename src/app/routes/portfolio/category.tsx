@@ -113,6 +113,13 @@ export function Component() {
               >
                 Export CSV
               </a>
+              <a
+                href={standingsPath(slug, view, '.xlsx')}
+                download
+                className="inline-flex items-center rounded-md bg-white px-3.5 py-2 text-sm font-semibold text-ink-900 ring-1 ring-ink-200 hover:bg-ink-50"
+              >
+                Export workbook
+              </a>
               {canCalibrate ? (
                 <Link
                   to={`/categories/${slug}/calibrate${view.week ? `?week=${view.week}` : ''}`}

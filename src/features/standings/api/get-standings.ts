@@ -16,9 +16,9 @@ export type StandingsView = {
   pageSize: number;
 };
 
-export function standingsPath(slug: string, view: StandingsView, format: '' | '.csv' = ''): string {
+export function standingsPath(slug: string, view: StandingsView, format: '' | '.csv' | '.xlsx' = ''): string {
   const { page, pageSize, ...rest } = view;
-  const paging = format === '.csv' ? {} : { page, pageSize };
+  const paging = format === '' ? { page, pageSize } : {};
   return `/api/categories/${encodeURIComponent(slug)}/standings${format}${toQueryString({ ...rest, ...paging })}`;
 }
 
