@@ -1,5 +1,5 @@
 import { categoryMoments, priorMean, priorWeightFor } from './prior';
-import { orderByScore } from './rank-stats';
+import { mergeInversions, orderByScore } from './rank-stats';
 import { priorWeightStrategies, resolveSettings } from './settings';
 import type { PriorWeightStrategy, ScoringSettings } from './settings';
 import { toColumns } from './summary';
@@ -240,33 +240,10 @@ export function searchPriorWeight(
     return root > 0 && Number.isFinite(root) ? root : Number.NaN;
   };
 
-  /** Inversions of x (values 0..N-1), counted by a bottom-up merge sort; with `visit`, each one reported. */
+  /** Inversions of x (values 0..N-1), counted in the scratch buffers. */
   const inversions = (x: Uint32Array): number => {
-    let a = scratchB;
-    let b = scratchC;
-    a.set(x);
-    let count = 0;
-    for (let width = 1; width < N; width *= 2) {
-      for (let lo = 0; lo < N; lo += 2 * width) {
-        const mid = Math.min(lo + width, N);
-        const hi = Math.min(lo + 2 * width, N);
-        let i = lo;
-        let j = mid;
-        let k = lo;
-        while (i < mid && j < hi) {
-          if (a[j]! < a[i]!) {
-            count += mid - i;
-            b[k++] = a[j++]!;
-          } else b[k++] = a[i++]!;
-        }
-        while (i < mid) b[k++] = a[i++]!;
-        while (j < hi) b[k++] = a[j++]!;
-      }
-      const t = a;
-      a = b;
-      b = t;
-    }
-    return count;
+    scratchB.set(x);
+    return mergeInversions(scratchB, scratchC).count;
   };
 
   /**

@@ -147,6 +147,42 @@ function averageOfCompetition(ranks: Uint32Array): Float64Array {
   return out;
 }
 
+/**
+ * Inversions of `a` (pairs i < j with a[j] < a[i]), counted by a bottom-up merge sort in O(n log n). `a` and
+ * `scratch` (same length) are both overwritten; `sorted` is whichever of the two ends up holding the values
+ * in ascending order.
+ */
+export function mergeInversions<T extends Float64Array | Uint32Array>(
+  a: T,
+  scratch: T,
+): { count: number; sorted: T } {
+  const n = a.length;
+  let from = a;
+  let to = scratch;
+  let count = 0;
+  for (let width = 1; width < n; width *= 2) {
+    for (let lo = 0; lo < n; lo += 2 * width) {
+      const mid = Math.min(lo + width, n);
+      const hi = Math.min(lo + 2 * width, n);
+      let i = lo;
+      let j = mid;
+      let k = lo;
+      while (i < mid && j < hi) {
+        if (from[j]! < from[i]!) {
+          to[k++] = from[j++]!;
+          count += mid - i;
+        } else to[k++] = from[i++]!;
+      }
+      while (i < mid) to[k++] = from[i++]!;
+      while (j < hi) to[k++] = from[j++]!;
+    }
+    const t = from;
+    from = to;
+    to = t;
+  }
+  return { count, sorted: from };
+}
+
 function kendallFromSorted(idx: Uint32Array, x: ArrayLike<number>, y: ArrayLike<number>): KendallParts {
   const n = idx.length;
   const pairs = (n * (n - 1)) / 2;
@@ -168,30 +204,9 @@ function kendallFromSorted(idx: Uint32Array, x: ArrayLike<number>, y: ArrayLike<
       runX = 1;
     }
   }
-  let a = new Float64Array(n);
-  for (let k = 0; k < n; k++) a[k] = y[idx[k]!]!;
-  let b = new Float64Array(n);
-  let swaps = 0;
-  for (let width = 1; width < n; width *= 2) {
-    for (let lo = 0; lo < n; lo += 2 * width) {
-      const mid = Math.min(lo + width, n);
-      const hi = Math.min(lo + 2 * width, n);
-      let i = lo;
-      let j = mid;
-      let k = lo;
-      while (i < mid && j < hi) {
-        if (a[j]! < a[i]!) {
-          b[k++] = a[j++]!;
-          swaps += mid - i;
-        } else b[k++] = a[i++]!;
-      }
-      while (i < mid) b[k++] = a[i++]!;
-      while (j < hi) b[k++] = a[j++]!;
-    }
-    const t = a;
-    a = b;
-    b = t;
-  }
+  const values = new Float64Array(n);
+  for (let k = 0; k < n; k++) values[k] = y[idx[k]!]!;
+  const { count: swaps, sorted: a } = mergeInversions(values, new Float64Array(n));
   let tiedY = 0;
   let runY = 1;
   for (let k = 1; k <= n; k++) {
