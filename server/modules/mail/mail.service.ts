@@ -4,7 +4,7 @@ import type { DigestKind, DigestSummary } from '../../../shared/schemas/digests.
 import { renderDigestMail } from '../../../templates/mail/render';
 import { loadConfig, type Config } from '../../config/env';
 import { Category, Digest, MailDelivery } from '../../db/models';
-import { claimDue } from '../../lib/leased-queue';
+import { claimDue, startQueueWorker, type QueueWorker } from '../../lib/leased-queue';
 import { logger } from '../../lib/logger';
 import { digestFileName } from '../digests/digests.service';
 import { composeAlertMail } from '../alerts/alert-mail.service';
@@ -180,7 +180,7 @@ export async function processDueDeliveries(options: {
   return pass;
 }
 
-export type MailWorker = { stop: () => Promise<void>; kick: () => void };
+export type MailWorker = QueueWorker;
 
 /** Runs worker passes every `everyMs` and whenever mail is queued in this process. */
 export function startMailWorker(options: {
@@ -188,43 +188,21 @@ export function startMailWorker(options: {
   everyMs?: number;
   config?: Config;
 }): MailWorker {
-  let running: Promise<void> | null = null;
-  let again = false;
-  let stopped = false;
-  const pass = (): void => {
-    if (stopped) return;
-    if (running) {
-      again = true;
-      return;
-    }
-    running = (async () => {
-      do {
-        again = false;
-        try {
-          const result = await processDueDeliveries({
-            transport: options.transport,
-            ...(options.config ? { config: options.config } : {}),
-          });
-          if (result.claimed === 50) again = true;
-        } catch (err) {
-          logger.error({ err: message(err) }, 'mail worker pass failed');
-        }
-      } while (again && !stopped);
-    })().finally(() => {
-      running = null;
-    });
-  };
-  const timer = setInterval(pass, options.everyMs ?? 15_000);
-  timer.unref();
-  mailEvents.on('queued', pass);
-  pass();
+  const worker = startQueueWorker({
+    name: 'mail',
+    everyMs: options.everyMs ?? 15_000,
+    events: mailEvents,
+    batch: 50,
+    drain: () =>
+      processDueDeliveries({
+        transport: options.transport,
+        ...(options.config ? { config: options.config } : {}),
+      }),
+  });
   return {
-    kick: pass,
+    kick: worker.kick,
     stop: async () => {
-      stopped = true;
-      clearInterval(timer);
-      mailEvents.off('queued', pass);
-      if (running) await running;
+      await worker.stop();
       options.transport.close();
     },
   };

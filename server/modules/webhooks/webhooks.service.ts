@@ -16,7 +16,7 @@ import { Webhook, WebhookDelivery } from '../../db/models';
 import { db } from '../../db/sequelize';
 import type { Actor } from '../../lib/actor';
 import { AppError } from '../../lib/app-error';
-import { claimDue } from '../../lib/leased-queue';
+import { claimDue, startQueueWorker, type QueueWorker } from '../../lib/leased-queue';
 import { logger } from '../../lib/logger';
 import { recordAudit } from '../audit/audit.service';
 import { landingUrl } from './landing';
@@ -336,49 +336,17 @@ export async function processDueWebhooks(
   return pass;
 }
 
-export type WebhookWorker = { stop: () => Promise<void>; kick: () => void };
+export type WebhookWorker = QueueWorker;
 
 /** Runs passes every `everyMs` and whenever a delivery is queued in this process. */
 export function startWebhookWorker(options: { everyMs?: number; config?: Config } = {}): WebhookWorker {
-  let running: Promise<void> | null = null;
-  let again = false;
-  let stopped = false;
-  const pass = (): void => {
-    if (stopped) return;
-    if (running) {
-      again = true;
-      return;
-    }
-    running = (async () => {
-      do {
-        again = false;
-        try {
-          const result = await processDueWebhooks(options.config ? { config: options.config } : {});
-          if (result.claimed === 20) again = true;
-        } catch (err) {
-          logger.error(
-            { err: err instanceof Error ? err.message : String(err) },
-            'webhook worker pass failed',
-          );
-        }
-      } while (again && !stopped);
-    })().finally(() => {
-      running = null;
-    });
-  };
-  const timer = setInterval(pass, options.everyMs ?? 5_000);
-  timer.unref();
-  webhookEvents.on('queued', pass);
-  pass();
-  return {
-    kick: pass,
-    stop: async () => {
-      stopped = true;
-      clearInterval(timer);
-      webhookEvents.off('queued', pass);
-      if (running) await running;
-    },
-  };
+  return startQueueWorker({
+    name: 'webhook',
+    everyMs: options.everyMs ?? 5_000,
+    events: webhookEvents,
+    batch: 20,
+    drain: () => processDueWebhooks(options.config ? { config: options.config } : {}),
+  });
 }
 
 function deliveryRecord(d: WebhookDelivery): WebhookDeliveryRecord {
