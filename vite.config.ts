@@ -49,6 +49,9 @@ export default defineConfig({
           name: 'unit',
           include: ['tests/shared/**/*.test.ts', 'tests/**/*.unit.test.ts'],
           environment: 'node',
+          // A guard against a hang, not a speed check: unit files share the two cores with the server and
+          // e2e projects, and the 5 s default was within reach of the busiest ones (speed: npm run bench).
+          testTimeout: 30_000,
         },
       },
       {

@@ -54,7 +54,28 @@ function run(): number {
       ]));
   const runs = [main.summary, auckland.summary].filter((s) => s !== null);
   if (runs.length > 0) {
-    const sum = (key: keyof Summary) => runs.reduce((n, s) => n + s[key], 0);
+    const sum = (key: 'numPassedTests' | 'numFailedTests' | 'numPendingTests') =>
+      runs.reduce((n, s) => n + s[key], 0);
+    // The failures again, last, so that the tail of a long CI log names them.
+    for (const [zone, s] of [
+      ['UTC', main.summary],
+      ['Pacific/Auckland', auckland.summary],
+    ] as const) {
+      for (const file of s?.testResults ?? []) {
+        const failed = file.assertionResults.filter((a) => a.status === 'failed');
+        if (file.status === 'failed' && failed.length === 0) {
+          console.log(
+            `FAILED (TZ=${zone}) ${path.relative(rootDir, file.name)}: ${file.message ?? 'did not run'}`,
+          );
+        }
+        for (const test of failed) {
+          const where = path.relative(rootDir, file.name);
+          console.log(`FAILED (TZ=${zone}) ${where} > ${test.fullName}`);
+          const why = test.failureMessages[0]?.split('\n')[0];
+          if (why) console.log(`  ${why.slice(0, 300)}`);
+        }
+      }
+    }
     console.log(
       `${sum('numPassedTests')} passed, ${sum('numFailedTests')} failed, ${sum('numPendingTests')} skipped`,
     );
@@ -70,7 +91,17 @@ function run(): number {
   return drill.status ?? 1;
 }
 
-type Summary = { numPassedTests: number; numFailedTests: number; numPendingTests: number };
+type Summary = {
+  numPassedTests: number;
+  numFailedTests: number;
+  numPendingTests: number;
+  testResults?: {
+    name: string;
+    status: string;
+    message?: string;
+    assertionResults: { fullName: string; status: string; failureMessages: string[] }[];
+  }[];
+};
 
 /** Path filters (substrings) of the tests whose figures a server zone could change. */
 const zoneCheckedTests = [

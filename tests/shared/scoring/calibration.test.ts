@@ -159,7 +159,8 @@ describe('calibration against an observed ordering (DESIGN §4.8)', () => {
     expect(result.matchedCount).toBe(2);
   });
 
-  it('handles 2,000 items in under 2 seconds', () => {
+  // Its speed is measured by `npm run bench -- calibration`, never by a timed test (CI runs under load).
+  it('handles 2,000 items with over a thousand swap points and a curve of at most 2,000 points', () => {
     let seed = 12345;
     const rand = () => {
       seed = (seed * 1103515245 + 12345) % 2147483648;
@@ -173,11 +174,8 @@ describe('calibration against an observed ordering (DESIGN §4.8)', () => {
       return { sku: `P${i}`, histogram: h };
     });
     const observed = observedAt(items, 37).reverse();
-    const t0 = performance.now();
     const result = calibrate(items, observed, {}, { asOf });
-    const elapsed = performance.now() - t0;
     expect(result.swapPointCount).toBeGreaterThan(1000);
     expect(result.curve.length).toBeLessThanOrEqual(2000);
-    expect(elapsed).toBeLessThan(2000);
   });
 });
